@@ -1,0 +1,3 @@
+fn main() {
+    tapline_app::start();
+}

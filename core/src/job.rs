@@ -1,0 +1,268 @@
+//! The job file: the JSON that `tapline solve` reads and the app saves, exports and imports.
+//!
+//! This is the *wire* shape, deliberately forgiving: every field is a [`Raw`] that keeps whatever the
+//! file held, so a job with a typo still loads, round-trips unchanged, and can be reported on field by
+//! field. Nothing here is trusted; [`crate::validate`] turns a [`JobFile`] into a
+//! [`crate::validate::Job`] or a list of problems, each naming its JSON path.
+//!
+//! # Format, version 1
+//!
+//! ```json
+//! { "version": 1, "name": "9 Quarry Lane",
+//!   "system": { "kind": "split-phase", "volts_to_neutral": 120, "frequency_hz": 60 },
+//!   "transformer": { "kva": 25, "primary_v": 7200, "impedance_pct": 2.0, "x_over_r": 1.5 },
+//!   "service": { "hot": { "material": "al", "size": "4/0", "length_m": 30 },
+//!                "neutral": { "r_ohm": 0.05, "x_ohm": 0.02 } },
+//!   "neutral": { "state": "loose", "ohms": 2.5 },
+//!   "loads": [ { "name": "Shop heater", "connect": "L1-N", "model": "resistive",
+//!                "watts": 1500, "rated_v": 120 } ] }
+//! ```
+//!
+//! Optional fields beyond those: `notes` (free text such as an address), `system.phases` (2 or 3 for a
+//! wye), `transformer.tap_pct` (−5, −2.5, 0, 2.5, 5) and `transformer.supply_v` (the primary voltage
+//! actually present), per conductor `length_ft`, `sets` (parallel sets), `conduit` (`pvc`, `aluminum`,
+//! `steel`) and `temperature_c`, `neutral.earth_return_ohms`, and per load `on`, `branch` (a conductor,
+//! one-way length), `input_min_v`/`input_max_v` (electronic supplies), `harmonics` (pairs of order and
+//! fraction of the fundamental current), `circuit`, `movable` and `slot`.
+
+use serde::de::DeserializeOwned;
+use serde::{Deserialize, Deserializer, Serialize, Serializer};
+use serde_json::Value;
+
+/// The job format version this engine writes and reads.
+pub const JOB_VERSION: u32 = 1;
+
+/// One field as it stood in the file.
+///
+/// `Absent` covers a missing key and `null`; `Given` holds a value of the expected JSON type;
+/// `Invalid` keeps a value of the wrong type verbatim so it can be reported and written back.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub enum Raw<T> {
+    #[default]
+    Absent,
+    Given(T),
+    Invalid(Value),
+}
+
+impl<T> Raw<T> {
+    /// True when the key was missing or `null`.
+    pub fn is_absent(&self) -> bool {
+        matches!(self, Raw::Absent)
+    }
+
+    /// The value when it had the expected type.
+    pub fn given(&self) -> Option<&T> {
+        match self {
+            Raw::Given(v) => Some(v),
+            _ => None,
+        }
+    }
+}
+
+impl<T> From<T> for Raw<T> {
+    fn from(v: T) -> Self {
+        Raw::Given(v)
+    }
+}
+
+impl<T: Serialize> Serialize for Raw<T> {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        match self {
+            Raw::Absent => s.serialize_none(),
+            Raw::Given(v) => v.serialize(s),
+            Raw::Invalid(v) => v.serialize(s),
+        }
+    }
+}
+
+impl<'de, T: DeserializeOwned> Deserialize<'de> for Raw<T> {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        let value = Value::deserialize(d)?;
+        if value.is_null() {
+            return Ok(Raw::Absent);
+        }
+        Ok(match serde_json::from_value::<T>(value.clone()) {
+            Ok(v) => Raw::Given(v),
+            Err(_) => Raw::Invalid(value),
+        })
+    }
+}
+
+/// The whole job file.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct JobFile {
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub version: Raw<u32>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub name: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub notes: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub system: Raw<SystemFile>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub transformer: Raw<TransformerFile>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub service: Raw<ServiceFile>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub neutral: Raw<NeutralFile>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub loads: Raw<Vec<Raw<LoadFile>>>,
+}
+
+/// `system`: what the utility delivers at the service.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct SystemFile {
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub kind: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub volts_to_neutral: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub frequency_hz: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub phases: Raw<u32>,
+}
+
+/// `transformer`: the distribution transformer feeding the service.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct TransformerFile {
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub kva: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub primary_v: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub impedance_pct: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub x_over_r: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub tap_pct: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub supply_v: Raw<f64>,
+}
+
+/// `service`: the conductors from the transformer to the panel.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct ServiceFile {
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub hot: Raw<ConductorFile>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub neutral: Raw<ConductorFile>,
+}
+
+/// A conductor run: a table size and length, or an explicit whole-run impedance.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct ConductorFile {
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub material: Raw<String>,
+    /// A size such as `"12"`, `"4/0"`, `"250"`, `"250 kcmil"` or `"16 mm2"`; a bare number is read too.
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub size: Raw<Value>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub length_m: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub length_ft: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub sets: Raw<u32>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub conduit: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub temperature_c: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub r_ohm: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub x_ohm: Raw<f64>,
+}
+
+/// `neutral`: the state of the service neutral.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct NeutralFile {
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub state: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub ohms: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub earth_return_ohms: Raw<f64>,
+}
+
+/// One appliance or load.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct LoadFile {
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub name: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub connect: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub model: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub watts: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub rated_v: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub power_factor: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub on: Raw<bool>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub branch: Raw<ConductorFile>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub input_min_v: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub input_max_v: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub harmonics: Raw<Vec<(u32, f64)>>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub appliance: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub circuit: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub movable: Raw<bool>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub slot: Raw<u32>,
+}
+
+/// Why a text could not be read as a job at all (before any field is looked at).
+#[derive(Clone, Debug, PartialEq)]
+pub struct ParseError {
+    pub message: String,
+}
+
+impl std::fmt::Display for ParseError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.message)
+    }
+}
+
+impl std::error::Error for ParseError {}
+
+/// Reads a job file from JSON text.
+///
+/// Only broken JSON, or a top level that is not an object, fails here; wrong field types are kept
+/// for [`crate::validate::validate`] to report with their paths.
+///
+/// # Errors
+/// A [`ParseError`] naming the line and column of broken JSON.
+pub fn parse_job(text: &str) -> Result<JobFile, ParseError> {
+    let value: Value = serde_json::from_str(text).map_err(|e| ParseError {
+        message: format!("job: not valid JSON ({e})"),
+    })?;
+    if !value.is_object() {
+        return Err(ParseError {
+            message: "job: must be a JSON object".to_string(),
+        });
+    }
+    serde_json::from_value(value).map_err(|e| ParseError {
+        message: format!("job: {e}"),
+    })
+}
+
+/// Writes a job file as pretty JSON, the form the app exports.
+pub fn job_to_json(job: &JobFile) -> String {
+    // Serialising plain data with string keys cannot fail; fall back to an empty object regardless
+    // so a caller never sees a panic.
+    serde_json::to_string_pretty(job).unwrap_or_else(|_| "{}".to_string())
+}

@@ -1,0 +1,395 @@
+//! Typical household and small-shop appliances: ratings and the model that best describes each.
+//!
+//! All figures are typical values, common practice, no source: a nameplate always wins. Power
+//! factors are displacement power factors; harmonic spectra are fractions of the fundamental
+//! current typical of the supply type (a rectifier with a capacitor and no power-factor correction
+//! draws a large third harmonic; one with correction draws little).
+
+use crate::job::{LoadFile, Raw};
+
+/// Which voltage an appliance is built for.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Hookup {
+    /// Between a hot leg and neutral (120 V class).
+    ToNeutral,
+    /// Between two hot legs (240 V or 208 V class).
+    Across,
+}
+
+/// An appliance template.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Appliance {
+    /// Stable identifier used in job files (`appliance`) and the app.
+    pub id: &'static str,
+    pub name: &'static str,
+    pub watts: f64,
+    pub rated_v: f64,
+    pub hookup: Hookup,
+    /// `resistive`, `impedance`, `lamp`, `motor` or `electronic`.
+    pub model: &'static str,
+    pub power_factor: f64,
+    /// Input range of an electronic supply, volts.
+    pub input_range: Option<(f64, f64)>,
+    pub harmonics: &'static [(u32, f64)],
+}
+
+/// A capacitor-input rectifier without power-factor correction (typical spectrum, common
+/// practice, from memory).
+const RECTIFIER: &[(u32, f64)] = &[(3, 0.81), (5, 0.61), (7, 0.37), (9, 0.16), (11, 0.06)];
+/// Small LED drivers without correction (typical, common practice, from memory).
+const LED_DRIVER: &[(u32, f64)] = &[(3, 0.70), (5, 0.45), (7, 0.25), (9, 0.12)];
+/// A supply with active power-factor correction: little left (typical, common practice).
+const CORRECTED: &[(u32, f64)] = &[(3, 0.05), (5, 0.03)];
+
+#[allow(clippy::too_many_arguments)] // One positional row per appliance keeps the table readable.
+const fn a(
+    id: &'static str,
+    name: &'static str,
+    watts: f64,
+    rated_v: f64,
+    hookup: Hookup,
+    model: &'static str,
+    power_factor: f64,
+    input_range: Option<(f64, f64)>,
+    harmonics: &'static [(u32, f64)],
+) -> Appliance {
+    Appliance {
+        id,
+        name,
+        watts,
+        rated_v,
+        hookup,
+        model,
+        power_factor,
+        input_range,
+        harmonics,
+    }
+}
+
+use Hookup::{Across, ToNeutral};
+
+/// The library (typical values, common practice).
+pub const APPLIANCES: &[Appliance] = &[
+    a(
+        "kettle",
+        "Electric kettle",
+        1500.0,
+        120.0,
+        ToNeutral,
+        "resistive",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "space-heater",
+        "Space heater",
+        1500.0,
+        120.0,
+        ToNeutral,
+        "resistive",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "toaster",
+        "Toaster",
+        1100.0,
+        120.0,
+        ToNeutral,
+        "resistive",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "hair-dryer",
+        "Hair dryer",
+        1200.0,
+        120.0,
+        ToNeutral,
+        "resistive",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "aquarium-heater",
+        "Aquarium heater",
+        150.0,
+        120.0,
+        ToNeutral,
+        "resistive",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "fridge",
+        "Refrigerator",
+        180.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.80,
+        None,
+        &[],
+    ),
+    a(
+        "freezer",
+        "Chest freezer",
+        150.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.75,
+        None,
+        &[],
+    ),
+    a(
+        "furnace-blower",
+        "Furnace blower",
+        400.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.85,
+        None,
+        &[],
+    ),
+    a(
+        "sump-pump",
+        "Sump pump",
+        800.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.80,
+        None,
+        &[],
+    ),
+    a(
+        "window-ac",
+        "Window air conditioner",
+        900.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.90,
+        None,
+        &[],
+    ),
+    a(
+        "washer",
+        "Clothes washer",
+        500.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.70,
+        None,
+        &[],
+    ),
+    a(
+        "microwave",
+        "Microwave oven",
+        1500.0,
+        120.0,
+        ToNeutral,
+        "impedance",
+        0.95,
+        None,
+        &[],
+    ),
+    a(
+        "tv",
+        "Television",
+        120.0,
+        120.0,
+        ToNeutral,
+        "electronic",
+        0.95,
+        Some((90.0, 264.0)),
+        RECTIFIER,
+    ),
+    a(
+        "computer",
+        "Desktop computer",
+        250.0,
+        120.0,
+        ToNeutral,
+        "electronic",
+        0.98,
+        Some((90.0, 264.0)),
+        CORRECTED,
+    ),
+    a(
+        "router",
+        "Internet router",
+        15.0,
+        120.0,
+        ToNeutral,
+        "electronic",
+        0.90,
+        Some((90.0, 264.0)),
+        RECTIFIER,
+    ),
+    a(
+        "phone-charger",
+        "Phone charger",
+        20.0,
+        120.0,
+        ToNeutral,
+        "electronic",
+        0.90,
+        Some((90.0, 264.0)),
+        RECTIFIER,
+    ),
+    a(
+        "led-lamp",
+        "LED lamp",
+        10.0,
+        120.0,
+        ToNeutral,
+        "electronic",
+        0.90,
+        Some((90.0, 140.0)),
+        LED_DRIVER,
+    ),
+    a(
+        "incandescent-lamp",
+        "Incandescent lamp",
+        60.0,
+        120.0,
+        ToNeutral,
+        "lamp",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "water-heater",
+        "Water heater (240 V)",
+        4500.0,
+        240.0,
+        Across,
+        "resistive",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "dryer",
+        "Clothes dryer (240 V)",
+        5000.0,
+        240.0,
+        Across,
+        "resistive",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "range",
+        "Range, one element on (240 V)",
+        3000.0,
+        240.0,
+        Across,
+        "resistive",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "heat-pump",
+        "Heat pump (240 V)",
+        3500.0,
+        240.0,
+        Across,
+        "motor",
+        0.90,
+        None,
+        &[],
+    ),
+    a(
+        "ev-charger",
+        "EV charger, level 2 (240 V)",
+        7200.0,
+        240.0,
+        Across,
+        "electronic",
+        0.99,
+        Some((200.0, 264.0)),
+        CORRECTED,
+    ),
+    a(
+        "table-saw",
+        "Table saw",
+        1800.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.80,
+        None,
+        &[],
+    ),
+    a(
+        "air-compressor",
+        "Shop air compressor",
+        1500.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.75,
+        None,
+        &[],
+    ),
+];
+
+/// Finds an appliance by id.
+pub fn find(id: &str) -> Option<&'static Appliance> {
+    APPLIANCES.iter().find(|a| a.id == id)
+}
+
+/// Appliances whose name or id contains `query` (case-insensitive); all for an empty query.
+pub fn search(query: &str) -> Vec<&'static Appliance> {
+    let q = query.trim().to_lowercase();
+    APPLIANCES
+        .iter()
+        .filter(|a| q.is_empty() || a.name.to_lowercase().contains(&q) || a.id.contains(&q))
+        .collect()
+}
+
+impl Appliance {
+    /// A job-file load for this appliance on `connect` (`L1-N`, `L1-L2`, ...).
+    pub fn to_load(&self, name: &str, connect: &str) -> LoadFile {
+        LoadFile {
+            name: Raw::Given(name.to_string()),
+            connect: Raw::Given(connect.to_string()),
+            model: Raw::Given(self.model.to_string()),
+            watts: Raw::Given(self.watts),
+            rated_v: Raw::Given(self.rated_v),
+            power_factor: if self.power_factor < 1.0 {
+                Raw::Given(self.power_factor)
+            } else {
+                Raw::Absent
+            },
+            input_min_v: self
+                .input_range
+                .map(|r| Raw::Given(r.0))
+                .unwrap_or_default(),
+            input_max_v: self
+                .input_range
+                .map(|r| Raw::Given(r.1))
+                .unwrap_or_default(),
+            harmonics: if self.harmonics.is_empty() {
+                Raw::Absent
+            } else {
+                Raw::Given(self.harmonics.to_vec())
+            },
+            appliance: Raw::Given(self.id.to_string()),
+            ..LoadFile::default()
+        }
+    }
+}

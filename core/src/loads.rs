@@ -1,0 +1,240 @@
+//! Load models: how much current an appliance draws at the voltage it actually gets.
+//!
+//! Every model is defined by its real power `P` at its rated voltage `V_r` and its lagging
+//! displacement power factor `pf` (θ = acos pf, reactive power Q = P·tan θ). The solver asks each
+//! load for its admittance Y at the present terminal voltage magnitude |V| (siemens, Y = G − jB with
+//! B > 0 for lagging current), so that I = Y·V.
+
+use crate::conductors::Conductor;
+use crate::system::Leg;
+use num_complex::Complex64;
+
+/// Current of a tungsten filament lamp rises as I ∝ V^0.54, so its conductance falls as
+/// G ∝ V^(0.54 − 1). Source: IES Lighting Handbook exponents for incandescent lamps (from memory).
+pub const LAMP_CURRENT_EXPONENT: f64 = 0.54;
+
+/// Life of a tungsten lamp falls as life ∝ V^−13. Source: IES Lighting Handbook (from memory).
+pub const LAMP_LIFE_EXPONENT: f64 = -13.0;
+
+/// Below this fraction of rated voltage a lamp is treated as a fixed (cold-ish) resistance, which
+/// keeps the conductance finite: a cold filament has roughly a tenth of its hot resistance
+/// (common practice, no source).
+pub const LAMP_MIN_FRACTION: f64 = 0.01;
+
+/// Breakdown torque of a small induction motor as a multiple of rated torque (NEMA design B
+/// motors are at least about 2×; from memory). Torque ∝ V² (NEMA MG 1 §12.44), so the motor
+/// stalls at V/V_r = 1/√2 ≈ 0.71 with rated load torque.
+pub const MOTOR_BREAKDOWN_TORQUE: f64 = 2.0;
+
+/// Locked-rotor current as a multiple of rated current, and its power factor (common practice, no
+/// source: small single-phase and compressor motors draw about five to six times running current
+/// at a power factor near 0.35 when stalled).
+pub const LOCKED_ROTOR_MULTIPLE: f64 = 5.0;
+/// See [`LOCKED_ROTOR_MULTIPLE`].
+pub const LOCKED_ROTOR_PF: f64 = 0.35;
+
+/// A switched-mode supply that has dropped out still draws a little standby power; it is modelled as
+/// a resistor taking this fraction of rated power at rated voltage (common practice, no source).
+pub const ELECTRONIC_STANDBY_FRACTION: f64 = 0.01;
+
+/// Default input range of an electronic supply as fractions of rated voltage when the job gives
+/// none: 75 % to 115 % (common practice, no source; "100–240 V" supplies state their own range).
+pub const ELECTRONIC_DEFAULT_RANGE: (f64, f64) = (0.75, 1.15);
+
+/// How a load is connected at the panel.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Connection {
+    /// Between a hot leg and the neutral (a 120 V load on 120/240 V).
+    ToNeutral(Leg),
+    /// Between two hot legs (a 240 V or 208 V load).
+    Across(Leg, Leg),
+}
+
+impl Connection {
+    /// Reads `L1-N`, `L2-N`, `L3-N`, `L1-L2`, `L2-L3`, `L3-L1` (and the reversed order).
+    pub fn parse(s: &str) -> Option<Connection> {
+        let t = s.trim().to_ascii_uppercase().replace(' ', "");
+        let (a, b) = t.split_once('-')?;
+        match (Leg::parse(a), Leg::parse(b), b) {
+            (Some(l), None, "N") => Some(Connection::ToNeutral(l)),
+            (None, Some(l), _) if a == "N" => Some(Connection::ToNeutral(l)),
+            (Some(x), Some(y), _) if x != y => Some(Connection::Across(x.min(y), x.max(y))),
+            _ => None,
+        }
+    }
+
+    /// `L1-N`, `L1-L2`, ...
+    pub fn label(self) -> String {
+        match self {
+            Connection::ToNeutral(l) => format!("{}-N", l.name()),
+            Connection::Across(a, b) => format!("{}-{}", a.name(), b.name()),
+        }
+    }
+
+    /// The legs this connection uses.
+    pub fn legs(self) -> Vec<Leg> {
+        match self {
+            Connection::ToNeutral(l) => vec![l],
+            Connection::Across(a, b) => vec![a, b],
+        }
+    }
+}
+
+/// The physical behaviour of a load.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Model {
+    /// Constant resistance, R = V_r²/P (heaters, kettles, water-heater elements).
+    Resistive,
+    /// Constant impedance with a lagging power factor, Y = (P − jQ)/V_r².
+    Impedance,
+    /// Tungsten filament: G = (P/V_r²)·(|V|/V_r)^(0.54 − 1), see [`LAMP_CURRENT_EXPONENT`].
+    Lamp,
+    /// Induction motor: constant power P + jQ while running (Y = (P − jQ)/|V|²); below
+    /// 1/√[`MOTOR_BREAKDOWN_TORQUE`] of rated voltage it stalls and draws locked-rotor current.
+    Motor,
+    /// Switched-mode supply: constant power inside `[min_v, max_v]`; below it drops out to
+    /// standby; above it the supply is over-stressed (it is still modelled at constant power).
+    Electronic { min_v: f64, max_v: f64 },
+}
+
+impl Model {
+    /// The job-file name of the model.
+    pub fn code(self) -> &'static str {
+        match self {
+            Model::Resistive => "resistive",
+            Model::Impedance => "impedance",
+            Model::Lamp => "lamp",
+            Model::Motor => "motor",
+            Model::Electronic { .. } => "electronic",
+        }
+    }
+
+    /// True for models whose current depends non-linearly on voltage.
+    pub fn is_nonlinear(self) -> bool {
+        matches!(self, Model::Lamp | Model::Motor | Model::Electronic { .. })
+    }
+}
+
+/// Operating state of a load after a solve. Stalling and dropping out are one-way within a solve:
+/// a stalled motor draws more current and pulls the voltage further down, and a real one stays
+/// stalled until its thermal protector opens; a dropped-out supply is reported as off.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum State {
+    Running,
+    Stalled,
+    DroppedOut,
+}
+
+/// A validated load.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Load {
+    pub(crate) name: String,
+    pub(crate) connection: Connection,
+    pub(crate) model: Model,
+    pub(crate) rated_w: f64,
+    pub(crate) rated_v: f64,
+    pub(crate) power_factor: f64,
+    pub(crate) on: bool,
+    /// The branch circuit's loop (outgoing plus return conductor), or an ideal conductor.
+    pub(crate) branch: Option<Conductor>,
+    /// (order, fraction of fundamental current) for odd orders 3..=49.
+    pub(crate) harmonics: Vec<(u32, f64)>,
+    pub(crate) circuit: Option<String>,
+    pub(crate) movable: bool,
+    pub(crate) slot: Option<u32>,
+}
+
+impl Load {
+    pub fn name(&self) -> &str {
+        &self.name
+    }
+    pub fn connection(&self) -> Connection {
+        self.connection
+    }
+    pub fn model(&self) -> Model {
+        self.model
+    }
+    /// Real power at rated voltage, watts.
+    pub fn rated_w(&self) -> f64 {
+        self.rated_w
+    }
+    pub fn rated_v(&self) -> f64 {
+        self.rated_v
+    }
+    /// Lagging displacement power factor, in (0, 1].
+    pub fn power_factor(&self) -> f64 {
+        self.power_factor
+    }
+    pub fn is_on(&self) -> bool {
+        self.on
+    }
+    pub fn branch(&self) -> Option<&Conductor> {
+        self.branch.as_ref()
+    }
+    pub fn harmonics(&self) -> &[(u32, f64)] {
+        &self.harmonics
+    }
+    pub fn circuit(&self) -> Option<&str> {
+        self.circuit.as_deref()
+    }
+    pub fn movable(&self) -> bool {
+        self.movable
+    }
+    pub fn slot(&self) -> Option<u32> {
+        self.slot
+    }
+
+    /// Complex power at rated voltage, S = P + jP·tan θ (VA).
+    pub fn rated_complex_power(&self) -> Complex64 {
+        let pf = self.power_factor;
+        let q = self.rated_w * (1.0 - pf * pf).sqrt() / pf;
+        Complex64::new(self.rated_w, q)
+    }
+
+    /// Current at rated voltage, amperes: I = P/(pf·V_r).
+    pub fn rated_current(&self) -> f64 {
+        self.rated_w / (self.power_factor * self.rated_v)
+    }
+
+    /// The voltage below which a constant-power model leaves its running state, volts.
+    pub fn low_limit_v(&self) -> Option<f64> {
+        match self.model {
+            Model::Motor => Some(self.rated_v / MOTOR_BREAKDOWN_TORQUE.sqrt()),
+            Model::Electronic { min_v, .. } => Some(min_v),
+            _ => None,
+        }
+    }
+
+    /// Admittance at terminal voltage magnitude `v` (volts) in `state`, siemens.
+    ///
+    /// Constant-power models are evaluated no lower than their low limit, so the running solution
+    /// stays finite; a load whose converged voltage is below that limit is moved to its low state by
+    /// the solver and solved again.
+    pub fn admittance(&self, v: f64, state: State) -> Complex64 {
+        let vr2 = self.rated_v * self.rated_v;
+        match (self.model, state) {
+            (Model::Resistive, _) => Complex64::new(self.rated_w / vr2, 0.0),
+            (Model::Impedance, _) => self.rated_complex_power().conj() / vr2,
+            (Model::Lamp, _) => {
+                let frac = (v / self.rated_v).max(LAMP_MIN_FRACTION);
+                Complex64::new(
+                    self.rated_w / vr2 * frac.powf(LAMP_CURRENT_EXPONENT - 1.0),
+                    0.0,
+                )
+            }
+            (Model::Motor, State::Stalled) => {
+                let i_lr = LOCKED_ROTOR_MULTIPLE * self.rated_current();
+                let theta = LOCKED_ROTOR_PF.acos();
+                Complex64::from_polar(i_lr / self.rated_v, -theta)
+            }
+            (Model::Electronic { .. }, State::DroppedOut) => {
+                Complex64::new(ELECTRONIC_STANDBY_FRACTION * self.rated_w / vr2, 0.0)
+            }
+            (Model::Motor | Model::Electronic { .. }, _) => {
+                let floor = self.low_limit_v().unwrap_or(0.0).max(1e-3 * self.rated_v);
+                let v_eff = v.max(floor);
+                self.rated_complex_power().conj() / (v_eff * v_eff)
+            }
+        }
+    }
+}
