@@ -173,13 +173,21 @@ pub fn classify(load: &Load, volts: f64, state: State, on: bool) -> (Outcome, St
     let in_a = f >= ua_min && f <= ansi::UTILIZATION_A.1;
     let in_b = f >= ub_min && f <= ansi::UTILIZATION_B.1;
     match (load.model(), state) {
-        (Model::Motor, State::Stalled) => (
+        (Model::Motor, State::Stalled) if f < crate::loads::MOTOR_BREAKDOWN_TORQUE.sqrt().recip() => (
             Outcome::Stall,
             format!("gets {v:.0} V ({pct:.0} %): too low to keep turning; it stalls and draws locked-rotor current until its overload trips"),
         ),
-        (Model::Electronic { min_v, .. }, State::DroppedOut) => (
+        (Model::Motor, State::Stalled) => (
+            Outcome::Stall,
+            format!("the supply sags too far when it runs, so it stalls (locked-rotor, {v:.0} V) until its overload trips"),
+        ),
+        (Model::Electronic { min_v, .. }, State::DroppedOut) if volts < min_v => (
             Outcome::UnderVoltage,
             format!("gets {v:.0} V: below its {min_v:.0} V input range, so it shuts off or keeps restarting"),
+        ),
+        (Model::Electronic { .. }, State::DroppedOut) => (
+            Outcome::UnderVoltage,
+            format!("the supply sags too far at its full power, so it shuts off or keeps restarting ({v:.0} V while off)"),
         ),
         (Model::Electronic { min_v, max_v }, _) => {
             if volts > max_v {

@@ -256,8 +256,24 @@ pub fn solve(net: &Network) -> Result<Solution, SolveError> {
         .collect();
     let mut total_iterations = 0;
     // Each pass can only move loads into their low state, so at most n + 1 passes are needed.
-    for _ in 0..=n {
-        let (v, iterations) = iterate(net, &states, &mut y)?;
+    for _ in 0..=n + 1 {
+        let (v, iterations) = match iterate(net, &states, &mut y) {
+            Ok(done) => done,
+            Err(SolveError::NoConvergence { iterations }) => {
+                // A constant-power load the service cannot supply has no steady state: its voltage
+                // keeps sinking (voltage collapse). Physically the weakest such load stalls or
+                // drops out, so move it to its low state and solve again; with none left to move
+                // the failure stands.
+                total_iterations += iterations;
+                if !collapse_weakest(net, &mut states, &mut y) {
+                    return Err(SolveError::NoConvergence {
+                        iterations: total_iterations,
+                    });
+                }
+                continue;
+            }
+            Err(e) => return Err(e),
+        };
         total_iterations += iterations;
         let mut changed = false;
         for (k, p) in net.loads().iter().enumerate() {
@@ -284,6 +300,34 @@ pub fn solve(net: &Network) -> Result<Solution, SolveError> {
     Err(SolveError::NoConvergence {
         iterations: total_iterations,
     })
+}
+
+/// Moves the running constant-power load with the lowest voltage relative to its rating (as last
+/// iterated, `y` holding its admittance) to its low state. Returns false when there is none.
+fn collapse_weakest(net: &Network, states: &mut [State], y: &mut [Complex64]) -> bool {
+    let weakest = net
+        .loads()
+        .iter()
+        .enumerate()
+        .filter(|(k, p)| p.load.is_on() && states[*k] == State::Running && p.load.low_limit_v().is_some())
+        .map(|(k, p)| {
+            // |V|² = P/G at constant power, so a larger conductance per watt means a lower voltage.
+            let rated = p.load.admittance(p.load.rated_v(), State::Running).norm();
+            (k, rated / y[k].norm())
+        })
+        .min_by(|a, b| a.1.total_cmp(&b.1));
+    match weakest {
+        Some((k, _)) => {
+            let p = &net.loads()[k];
+            states[k] = match p.load.model() {
+                Model::Motor => State::Stalled,
+                _ => State::DroppedOut,
+            };
+            y[k] = p.load.admittance(0.0, states[k]);
+            true
+        }
+        None => false,
+    }
 }
 
 /// The fixed-point iteration y ← load admittance at the voltage the last solve gave, damped when the

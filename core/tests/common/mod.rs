@@ -1,0 +1,52 @@
+//! Helpers shared by the integration tests.
+#![allow(dead_code)]
+
+use tapline_core::network::Network;
+use tapline_core::report::Report;
+use tapline_core::solve::{solve, Solution};
+use tapline_core::validate::Job;
+
+/// Asserts |a − b| ≤ tol, printing both values on failure.
+#[track_caller]
+pub fn close(a: f64, b: f64, tol: f64) {
+    assert!(
+        (a - b).abs() <= tol,
+        "expected {b} ± {tol}, got {a} (off by {})",
+        (a - b).abs()
+    );
+}
+
+/// Asserts a relative difference of at most `rel`.
+#[track_caller]
+pub fn close_rel(a: f64, b: f64, rel: f64) {
+    let scale = a.abs().max(b.abs()).max(1e-300);
+    assert!(
+        (a - b).abs() / scale <= rel,
+        "expected {b} within {rel} relative, got {a}"
+    );
+}
+
+/// Parses and validates a job, panicking with the problems if it is invalid.
+pub fn job(text: &str) -> Job {
+    match tapline_core::load_job(text) {
+        Ok((_, j)) => j,
+        Err(e) => panic!("test job is invalid:\n{e}"),
+    }
+}
+
+/// Solves a job's network.
+pub fn solved(j: &Job) -> (Network, Solution) {
+    let net = Network::new(j);
+    let sol = solve(&net).expect("solves");
+    (net, sol)
+}
+
+/// The report of a job's JSON text.
+pub fn report(text: &str) -> Report {
+    tapline_core::solve_text(text).expect("solves")
+}
+
+/// A resistive load's watts at `rated_v` for a resistance in ohms: P = V²/R.
+pub fn watts_for_ohms(rated_v: f64, ohms: f64) -> f64 {
+    rated_v * rated_v / ohms
+}

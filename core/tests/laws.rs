@@ -1,0 +1,284 @@
+//! Circuit laws as property tests over bounded random jobs: Kirchhoff's current law, conservation
+//! of power, the open-neutral series split, the neutral as the phasor sum of the legs, monotone
+//! outcomes as the neutral loosens, and a lossless job round trip.
+
+mod common;
+
+use num_complex::Complex64;
+use proptest::prelude::*;
+use serde_json::{json, Value};
+use tapline_core::job::{job_to_json, parse_job};
+use tapline_core::linalg::invert3;
+use tapline_core::network::{Network, NeutralPath, Source, NEUTRAL_INDEX};
+use tapline_core::solve::solve;
+use tapline_core::validate::{validate, NeutralState};
+use tapline_core::whatif::{sweep, sweep_points};
+
+/// Generators, kept in one place and bounded to what a service can be.
+mod gen {
+    use super::*;
+
+    pub fn system() -> impl Strategy<Value = (Value, Vec<&'static str>)> {
+        prop_oneof![
+            (100.0..300.0f64).prop_map(|v| (json!({"kind":"split-phase","volts_to_neutral":v}), vec!["L1-N", "L2-N", "L1-L2"])),
+            (100.0..300.0f64).prop_map(|v| (json!({"kind":"wye","phases":2,"volts_to_neutral":v}), vec!["L1-N", "L2-N", "L1-L2"])),
+            (100.0..300.0f64).prop_map(|v| (
+                json!({"kind":"wye","volts_to_neutral":v}),
+                vec!["L1-N", "L2-N", "L3-N", "L1-L2", "L2-L3", "L3-L1"]
+            )),
+        ]
+    }
+
+    pub fn transformer() -> impl Strategy<Value = Value> {
+        (10.0..500.0f64, 1.0..6.0f64, 0.3..5.0f64)
+            .prop_map(|(kva, z, xr)| json!({"kva":kva,"primary_v":12470,"impedance_pct":z,"x_over_r":xr}))
+    }
+
+    pub fn impedance(lo: f64, hi: f64) -> impl Strategy<Value = Value> {
+        (lo..hi, 0.0..hi).prop_map(|(r, x)| json!({"r_ohm":r,"x_ohm":x}))
+    }
+
+    pub fn neutral() -> impl Strategy<Value = Value> {
+        prop_oneof![
+            Just(json!({"state":"intact"})),
+            (0.0..50.0f64).prop_map(|o| json!({"state":"loose","ohms":o})),
+            (1.0..200.0f64).prop_map(|e| json!({"state":"open","earth_return_ohms":e})),
+            Just(json!({"state":"open"})),
+        ]
+    }
+
+    /// A load on one of `connects`; `linear` limits models to constant impedance.
+    pub fn load(connects: Vec<&'static str>, linear: bool) -> impl Strategy<Value = Value> {
+        let models: Vec<&'static str> = if linear {
+            vec!["resistive", "impedance"]
+        } else {
+            vec!["resistive", "impedance", "lamp", "motor", "electronic"]
+        };
+        (
+            proptest::sample::select(connects),
+            proptest::sample::select(models),
+            10.0..5000.0f64,
+            0.5..1.0f64,
+            proptest::option::of(impedance(0.0, 0.5)),
+            any::<bool>(),
+        )
+            .prop_map(|(c, m, w, pf, branch, harmonics)| {
+                let mut l = json!({"connect":c,"model":m,"watts":w});
+                if m == "impedance" || m == "motor" || m == "electronic" {
+                    l["power_factor"] = json!(pf);
+                }
+                if m == "electronic" {
+                    if harmonics {
+                        l["harmonics"] = json!([[3, 0.8], [5, 0.5], [7, 0.2]]);
+                    }
+                }
+                if let Some(b) = branch {
+                    l["branch"] = b;
+                }
+                l
+            })
+    }
+
+    /// A whole job with a source of finite impedance and a neutral conductor of finite impedance,
+    /// so every element's current can be computed from its own equation.
+    pub fn job(linear: bool) -> impl Strategy<Value = Value> {
+        system().prop_flat_map(move |(sys, connects)| {
+            (
+                Just(sys),
+                proptest::option::of(transformer()),
+                impedance(0.001, 0.2),
+                impedance(0.001, 0.2),
+                neutral(),
+                proptest::collection::vec(load(connects, linear), 1..8),
+            )
+                .prop_map(|(sys, t, hot, neu, n, loads)| {
+                    let mut j = json!({"version":1,"name":"generated","system":sys,
+                        "service":{"hot":hot,"neutral":neu},"neutral":n,"loads":loads});
+                    if let Some(t) = t {
+                        j["transformer"] = t;
+                    }
+                    j
+                })
+        })
+    }
+}
+
+fn parse(v: &Value) -> tapline_core::validate::Job {
+    validate(&parse_job(&v.to_string()).unwrap()).unwrap_or_else(|p| panic!("{p:?} in {v}"))
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 200, .. ProptestConfig::default() })]
+
+    /// Kirchhoff's current law at every panel node: the source's current from its own equation,
+    /// I = Z_s⁻¹·(E − V), equals the sum of the load currents leaving each hot bar, and the
+    /// neutral path's current V_N/Z_N equals the load currents arriving at the neutral bar.
+    /// Residual below 1e-9 of the largest current in the equation.
+    #[test]
+    fn kirchhoff_current_law(v in gen::job(false)) {
+        let job = parse(&v);
+        let net = Network::new(&job);
+        let sol = solve(&net).map_err(|e| TestCaseError::fail(format!("solve failed: {e}")))?;
+        let Source::Thevenin { z } = net.source() else { unreachable!("generated sources have impedance") };
+        let k = net.leg_count();
+        let y = invert3(&z, k).unwrap();
+        // The source's equation subtracts two Norton currents of the order of the short-circuit
+        // current, so that is the largest current in it.
+        let mut scale = sol.leg_current.iter().map(|i| i.norm()).fold(0.0, f64::max);
+        for i in 0..k {
+            for j in 0..k {
+                scale = scale.max((y[i][j] * net.emf()[j]).norm());
+            }
+        }
+        for i in 0..k {
+            let mut from_source = Complex64::new(0.0, 0.0);
+            for j in 0..k {
+                from_source += y[i][j] * (net.emf()[j] - sol.node_v[j].unwrap());
+            }
+            prop_assert!((from_source - sol.leg_current[i]).norm() <= 1e-9 * scale,
+                "leg {i}: source {from_source} vs loads {}", sol.leg_current[i]);
+        }
+        match (net.neutral(), sol.node_v[NEUTRAL_INDEX]) {
+            (NeutralPath::Conductor(zn), Some(vn)) => {
+                prop_assert!((vn / zn - sol.neutral_current).norm() <= 1e-9 * scale);
+            }
+            (NeutralPath::Open { earth_ohms: Some(r) }, Some(vn)) => {
+                prop_assert!((vn / r - sol.earth_current).norm() <= 1e-9 * scale);
+            }
+            _ => {}
+        }
+    }
+
+    /// Conservation of power: Σ E·I* from the ideal sources equals the loads' complex power plus
+    /// the losses in the source, the service neutral, the earth path and the branch conductors.
+    #[test]
+    fn source_power_equals_loads_plus_losses(v in gen::job(false)) {
+        let job = parse(&v);
+        let net = Network::new(&job);
+        let sol = solve(&net).map_err(|e| TestCaseError::fail(format!("solve failed: {e}")))?;
+        let Source::Thevenin { z } = net.source() else { unreachable!() };
+        let k = net.leg_count();
+        let mut source = Complex64::new(0.0, 0.0);
+        let mut losses = Complex64::new(0.0, 0.0);
+        for i in 0..k {
+            source += net.emf()[i] * sol.leg_current[i].conj();
+            let mut drop = Complex64::new(0.0, 0.0);
+            for j in 0..k {
+                drop += z[i][j] * sol.leg_current[j];
+            }
+            losses += drop * sol.leg_current[i].conj();
+        }
+        if let NeutralPath::Conductor(zn) = net.neutral() {
+            losses += zn * sol.neutral_current.norm_sqr();
+        }
+        if let NeutralPath::Open { earth_ohms: Some(r) } = net.neutral() {
+            losses += r * sol.earth_current.norm_sqr();
+        }
+        let mut loads = Complex64::new(0.0, 0.0);
+        for (p, r) in net.loads().iter().zip(&sol.loads) {
+            if let Some(vt) = r.terminal_v {
+                loads += vt * r.current.conj();
+            }
+            losses += p.branch * r.current.norm_sqr();
+        }
+        let scale = source.norm().max(loads.norm()).max(losses.norm());
+        // An absolute floor of 1e-9 VA covers networks that draw nothing at all (every load on an
+        // open neutral with no earth path).
+        prop_assert!((source - loads - losses).norm() <= 1e-8 * scale + 1e-9,
+            "source {source} loads {loads} losses {losses}");
+    }
+
+    /// The neutral carries the phasor sum of the leg currents (the difference, for split-phase
+    /// legs 180° apart), and nothing when the legs are balanced.
+    #[test]
+    fn neutral_is_the_phasor_sum_of_the_legs(v in gen::job(false), w in 10.0..5000.0f64) {
+        let job = parse(&v);
+        let net = Network::new(&job);
+        let sol = solve(&net).map_err(|e| TestCaseError::fail(format!("solve failed: {e}")))?;
+        let sum: Complex64 = sol.leg_current.iter().sum();
+        let returned = sol.neutral_current + sol.earth_current;
+        prop_assert!((sum - returned).norm() <= 1e-9 * sum.norm().max(1.0));
+        // Balanced: the same resistive load on every leg of a split-phase or full wye service.
+        let legs = if v["system"]["kind"] == "split-phase" { vec!["L1-N","L2-N"] }
+            else if v["system"]["phases"] == 2 { return Ok(()) } else { vec!["L1-N","L2-N","L3-N"] };
+        let loads: Vec<Value> = legs.iter().map(|c| json!({"connect":c,"model":"resistive","watts":w})).collect();
+        let balanced = json!({"system":v["system"].clone(),"service":v["service"].clone(),"loads":loads});
+        let b = solve(&Network::new(&parse(&balanced))).unwrap();
+        prop_assert!(b.neutral_current.norm() <= 1e-9 * b.leg_current[0].norm());
+    }
+
+    /// With the split-phase neutral open and no earth path, the resistive loads of the two legs are
+    /// in series across the line-to-line voltage: their voltages add up to it.
+    #[test]
+    fn open_split_phase_voltages_add_to_line_to_line(
+        w1 in proptest::collection::vec(10.0..3000.0f64, 1..5),
+        w2 in proptest::collection::vec(10.0..3000.0f64, 1..5),
+        t in proptest::option::of(gen::transformer()),
+    ) {
+        let mut loads: Vec<Value> = w1.iter().map(|w| json!({"connect":"L1-N","model":"resistive","watts":w})).collect();
+        loads.extend(w2.iter().map(|w| json!({"connect":"L2-N","model":"resistive","watts":w})));
+        let mut j = json!({"system":{"kind":"split-phase"},"neutral":{"state":"open"},"loads":loads});
+        if let Some(t) = t { j["transformer"] = t; }
+        let sol = solve(&Network::new(&parse(&j))).unwrap();
+        let v1 = sol.loads[0].terminal_v.unwrap().norm();
+        let v2 = sol.loads[w1.len()].terminal_v.unwrap().norm();
+        let ll = (sol.node_v[0].unwrap() - sol.node_v[1].unwrap()).norm();
+        prop_assert!((v1 + v2 - ll).abs() <= 1e-9 * ll, "{v1} + {v2} vs {ll}");
+    }
+
+    /// As the neutral resistance rises from 0 to open, the lighter leg's resistive loads never get
+    /// a milder outcome than before, and their voltage never falls.
+    #[test]
+    fn lighter_leg_worsens_monotonically(heavy in 500.0..4000.0f64, light in 10.0..400.0f64) {
+        let j = json!({"system":{"kind":"split-phase"},"loads":[
+            {"connect":"L1-N","model":"resistive","watts":heavy},
+            {"connect":"L2-N","model":"resistive","watts":light}]});
+        let s = sweep(&parse(&j), &sweep_points(60)).unwrap();
+        let series = &s.loads[1];
+        for k in 1..series.volts.len() {
+            prop_assert!(series.outcomes[k].severity() >= series.outcomes[k - 1].severity());
+            prop_assert!(series.volts[k].unwrap() >= series.volts[k - 1].unwrap() - 1e-9);
+        }
+    }
+
+    /// Job → JSON → job is lossless, including fields of the wrong type kept for reporting.
+    #[test]
+    fn job_round_trip_is_lossless(v in gen::job(false), junk in any::<bool>()) {
+        let mut v = v;
+        if junk {
+            v["loads"][0]["watts"] = json!("lots");
+        }
+        let file = parse_job(&v.to_string()).unwrap();
+        let again = parse_job(&job_to_json(&file)).unwrap();
+        prop_assert_eq!(&file, &again);
+        prop_assert_eq!(validate(&file).is_ok(), validate(&again).is_ok());
+    }
+}
+
+/// A floating neutral with nothing on it gives a defined answer: leg-to-leg loads still solve and
+/// voltages to neutral are reported as undefined rather than invented.
+#[test]
+fn floating_neutral_with_nothing_on_it_is_defined() {
+    let j = parse(&json!({"system":{"kind":"split-phase"},"neutral":{"state":"open"},"loads":[
+        {"connect":"L1-L2","model":"resistive","watts":4800}]}));
+    let sol = solve(&Network::new(&j)).unwrap();
+    assert!(sol.node_v[NEUTRAL_INDEX].is_none());
+    common::close(sol.loads[0].current.norm(), 20.0, 1e-9);
+    let r = tapline_core::report::analyze(&j).unwrap();
+    assert!(r.neutral.floating);
+    assert_eq!(r.legs["L1"].volts_to_neutral, None);
+}
+
+/// The neutral state changes only the neutral path: a loose neutral of 0 Ω solves like an intact
+/// one.
+#[test]
+fn loose_at_zero_ohms_equals_intact() {
+    let base = json!({"system":{"kind":"split-phase"},"service":{"hot":{"r_ohm":0.02},"neutral":{"r_ohm":0.03}},"loads":[
+        {"connect":"L1-N","model":"resistive","watts":1500},{"connect":"L2-N","model":"motor","watts":300,"power_factor":0.7}]});
+    let j = parse(&base);
+    let a = solve(&Network::new(&j)).unwrap();
+    let b = solve(&Network::new(&j.with_neutral(NeutralState::Loose { ohms: 0.0 }))).unwrap();
+    for k in 0..2 {
+        common::close((a.loads[k].terminal_v.unwrap() - b.loads[k].terminal_v.unwrap()).norm(), 0.0, 1e-9);
+    }
+}
