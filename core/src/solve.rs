@@ -309,7 +309,9 @@ fn collapse_weakest(net: &Network, states: &mut [State], y: &mut [Complex64]) ->
         .loads()
         .iter()
         .enumerate()
-        .filter(|(k, p)| p.load.is_on() && states[*k] == State::Running && p.load.low_limit_v().is_some())
+        .filter(|(k, p)| {
+            p.load.is_on() && states[*k] == State::Running && p.load.low_limit_v().is_some()
+        })
         .map(|(k, p)| {
             // |V|² = P/G at constant power, so a larger conductance per watt means a lower voltage.
             let rated = p.load.admittance(p.load.rated_v(), State::Running).norm();

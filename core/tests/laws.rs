@@ -20,8 +20,14 @@ mod gen {
 
     pub fn system() -> impl Strategy<Value = (Value, Vec<&'static str>)> {
         prop_oneof![
-            (100.0..300.0f64).prop_map(|v| (json!({"kind":"split-phase","volts_to_neutral":v}), vec!["L1-N", "L2-N", "L1-L2"])),
-            (100.0..300.0f64).prop_map(|v| (json!({"kind":"wye","phases":2,"volts_to_neutral":v}), vec!["L1-N", "L2-N", "L1-L2"])),
+            (100.0..300.0f64).prop_map(|v| (
+                json!({"kind":"split-phase","volts_to_neutral":v}),
+                vec!["L1-N", "L2-N", "L1-L2"]
+            )),
+            (100.0..300.0f64).prop_map(|v| (
+                json!({"kind":"wye","phases":2,"volts_to_neutral":v}),
+                vec!["L1-N", "L2-N", "L1-L2"]
+            )),
             (100.0..300.0f64).prop_map(|v| (
                 json!({"kind":"wye","volts_to_neutral":v}),
                 vec!["L1-N", "L2-N", "L3-N", "L1-L2", "L2-L3", "L3-L1"]
@@ -30,8 +36,9 @@ mod gen {
     }
 
     pub fn transformer() -> impl Strategy<Value = Value> {
-        (10.0..500.0f64, 1.0..6.0f64, 0.3..5.0f64)
-            .prop_map(|(kva, z, xr)| json!({"kva":kva,"primary_v":12470,"impedance_pct":z,"x_over_r":xr}))
+        (10.0..500.0f64, 1.0..6.0f64, 0.3..5.0f64).prop_map(
+            |(kva, z, xr)| json!({"kva":kva,"primary_v":12470,"impedance_pct":z,"x_over_r":xr}),
+        )
     }
 
     pub fn impedance(lo: f64, hi: f64) -> impl Strategy<Value = Value> {
@@ -259,8 +266,10 @@ proptest! {
 /// voltages to neutral are reported as undefined rather than invented.
 #[test]
 fn floating_neutral_with_nothing_on_it_is_defined() {
-    let j = parse(&json!({"system":{"kind":"split-phase"},"neutral":{"state":"open"},"loads":[
-        {"connect":"L1-L2","model":"resistive","watts":4800}]}));
+    let j = parse(
+        &json!({"system":{"kind":"split-phase"},"neutral":{"state":"open"},"loads":[
+        {"connect":"L1-L2","model":"resistive","watts":4800}]}),
+    );
     let sol = solve(&Network::new(&j)).unwrap();
     assert!(sol.node_v[NEUTRAL_INDEX].is_none());
     common::close(sol.loads[0].current.norm(), 20.0, 1e-9);
@@ -277,8 +286,15 @@ fn loose_at_zero_ohms_equals_intact() {
         {"connect":"L1-N","model":"resistive","watts":1500},{"connect":"L2-N","model":"motor","watts":300,"power_factor":0.7}]});
     let j = parse(&base);
     let a = solve(&Network::new(&j)).unwrap();
-    let b = solve(&Network::new(&j.with_neutral(NeutralState::Loose { ohms: 0.0 }))).unwrap();
+    let b = solve(&Network::new(
+        &j.with_neutral(NeutralState::Loose { ohms: 0.0 }),
+    ))
+    .unwrap();
     for k in 0..2 {
-        common::close((a.loads[k].terminal_v.unwrap() - b.loads[k].terminal_v.unwrap()).norm(), 0.0, 1e-9);
+        common::close(
+            (a.loads[k].terminal_v.unwrap() - b.loads[k].terminal_v.unwrap()).norm(),
+            0.0,
+            1e-9,
+        );
     }
 }

@@ -28,8 +28,16 @@ fn nec_table_8_dc_resistance() {
         ("1000", 0.0129, 0.0212),
     ];
     for (size, cu, al) in rows {
-        close(table8_dc_ohm_per_kft(Material::Copper, size).unwrap(), *cu, 1e-12);
-        close(table8_dc_ohm_per_kft(Material::Aluminum, size).unwrap(), *al, 1e-12);
+        close(
+            table8_dc_ohm_per_kft(Material::Copper, size).unwrap(),
+            *cu,
+            1e-12,
+        );
+        close(
+            table8_dc_ohm_per_kft(Material::Aluminum, size).unwrap(),
+            *al,
+            1e-12,
+        );
     }
 }
 
@@ -57,31 +65,116 @@ fn nec_table_9_ac_impedance() {
         ("12", 0.054, 0.068, [2.0, 2.0, 2.0], Some([3.2, 3.2, 3.2])),
         ("10", 0.050, 0.063, [1.2, 1.2, 1.2], Some([2.0, 2.0, 2.0])),
         ("8", 0.052, 0.065, [0.78, 0.78, 0.78], Some([1.3, 1.3, 1.3])),
-        ("6", 0.051, 0.064, [0.49, 0.49, 0.49], Some([0.81, 0.81, 0.81])),
-        ("4", 0.048, 0.060, [0.31, 0.31, 0.31], Some([0.51, 0.51, 0.51])),
-        ("2", 0.045, 0.057, [0.19, 0.20, 0.20], Some([0.32, 0.32, 0.32])),
-        ("1/0", 0.044, 0.055, [0.12, 0.13, 0.12], Some([0.20, 0.21, 0.20])),
-        ("2/0", 0.043, 0.054, [0.10, 0.10, 0.10], Some([0.16, 0.16, 0.16])),
-        ("3/0", 0.042, 0.052, [0.077, 0.082, 0.079], Some([0.13, 0.13, 0.13])),
-        ("4/0", 0.041, 0.051, [0.062, 0.067, 0.063], Some([0.10, 0.11, 0.10])),
-        ("250", 0.041, 0.052, [0.052, 0.057, 0.054], Some([0.085, 0.090, 0.086])),
-        ("350", 0.040, 0.050, [0.038, 0.043, 0.039], Some([0.061, 0.066, 0.063])),
-        ("500", 0.039, 0.048, [0.027, 0.032, 0.029], Some([0.043, 0.048, 0.045])),
+        (
+            "6",
+            0.051,
+            0.064,
+            [0.49, 0.49, 0.49],
+            Some([0.81, 0.81, 0.81]),
+        ),
+        (
+            "4",
+            0.048,
+            0.060,
+            [0.31, 0.31, 0.31],
+            Some([0.51, 0.51, 0.51]),
+        ),
+        (
+            "2",
+            0.045,
+            0.057,
+            [0.19, 0.20, 0.20],
+            Some([0.32, 0.32, 0.32]),
+        ),
+        (
+            "1/0",
+            0.044,
+            0.055,
+            [0.12, 0.13, 0.12],
+            Some([0.20, 0.21, 0.20]),
+        ),
+        (
+            "2/0",
+            0.043,
+            0.054,
+            [0.10, 0.10, 0.10],
+            Some([0.16, 0.16, 0.16]),
+        ),
+        (
+            "3/0",
+            0.042,
+            0.052,
+            [0.077, 0.082, 0.079],
+            Some([0.13, 0.13, 0.13]),
+        ),
+        (
+            "4/0",
+            0.041,
+            0.051,
+            [0.062, 0.067, 0.063],
+            Some([0.10, 0.11, 0.10]),
+        ),
+        (
+            "250",
+            0.041,
+            0.052,
+            [0.052, 0.057, 0.054],
+            Some([0.085, 0.090, 0.086]),
+        ),
+        (
+            "350",
+            0.040,
+            0.050,
+            [0.038, 0.043, 0.039],
+            Some([0.061, 0.066, 0.063]),
+        ),
+        (
+            "500",
+            0.039,
+            0.048,
+            [0.027, 0.032, 0.029],
+            Some([0.043, 0.048, 0.045]),
+        ),
     ];
     let conduits = [Conduit::Pvc, Conduit::Aluminum, Conduit::Steel];
     for (size, x_pvc, x_steel, cu, al) in rows {
         let s = Size::parse(size).unwrap();
         for (k, conduit) in conduits.iter().enumerate() {
-            let x = if *conduit == Conduit::Steel { *x_steel } else { *x_pvc };
-            let z = Conductor::from_table(Material::Copper, s, *conduit, 1000.0, 1, 75.0, 60.0).unwrap().impedance();
+            let x = if *conduit == Conduit::Steel {
+                *x_steel
+            } else {
+                *x_pvc
+            };
+            let z = Conductor::from_table(Material::Copper, s, *conduit, 1000.0, 1, 75.0, 60.0)
+                .unwrap()
+                .impedance();
             close(z.re, cu[k], 1e-12);
             close(z.im, x, 1e-12);
             match al {
                 Some(al) => {
-                    let z = Conductor::from_table(Material::Aluminum, s, *conduit, 1000.0, 1, 75.0, 60.0).unwrap().impedance();
+                    let z = Conductor::from_table(
+                        Material::Aluminum,
+                        s,
+                        *conduit,
+                        1000.0,
+                        1,
+                        75.0,
+                        60.0,
+                    )
+                    .unwrap()
+                    .impedance();
                     close(z.re, al[k], 1e-12);
                 }
-                None => assert!(Conductor::from_table(Material::Aluminum, s, *conduit, 1000.0, 1, 75.0, 60.0).is_err()),
+                None => assert!(Conductor::from_table(
+                    Material::Aluminum,
+                    s,
+                    *conduit,
+                    1000.0,
+                    1,
+                    75.0,
+                    60.0
+                )
+                .is_err()),
             }
         }
     }
@@ -111,12 +204,24 @@ fn nec_table_9_effective_z_at_085_pf() {
     let conduits = [Conduit::Pvc, Conduit::Aluminum, Conduit::Steel];
     for (size, published) in rows {
         for (k, conduit) in conduits.iter().enumerate() {
-            let z = Conductor::from_table(Material::Copper, Size::parse(size).unwrap(), *conduit, 1000.0, 1, 75.0, 60.0)
-                .unwrap()
-                .impedance();
+            let z = Conductor::from_table(
+                Material::Copper,
+                Size::parse(size).unwrap(),
+                *conduit,
+                1000.0,
+                1,
+                75.0,
+                60.0,
+            )
+            .unwrap()
+            .impedance();
             let ze = z.re * 0.85 + z.im * (1.0f64 - 0.85 * 0.85).sqrt();
             let tol = (0.05 * published[k]).max(0.01);
-            assert!((ze - published[k]).abs() <= tol, "{size} in conduit {k}: {ze} vs {}", published[k]);
+            assert!(
+                (ze - published[k]).abs() <= tol,
+                "{size} in conduit {k}: {ze} vs {}",
+                published[k]
+            );
         }
     }
 }
@@ -125,12 +230,29 @@ fn nec_table_9_effective_z_at_085_pf() {
 /// α = 0.00323 copper (quoted in secondary sources). 12 AWG copper at 90 °C: 2.0·(1 + 0.00323·15).
 #[test]
 fn temperature_correction_table_8_note() {
-    let z = Conductor::from_table(Material::Copper, Size::parse("12").unwrap(), Conduit::Pvc, 1000.0, 1, 90.0, 60.0)
-        .unwrap()
-        .impedance();
+    let z = Conductor::from_table(
+        Material::Copper,
+        Size::parse("12").unwrap(),
+        Conduit::Pvc,
+        1000.0,
+        1,
+        90.0,
+        60.0,
+    )
+    .unwrap()
+    .impedance();
     close(z.re, 2.0 * (1.0 + 0.00323 * 15.0), 1e-12);
     // Parallel sets divide the impedance (common practice, no source).
-    let two = Conductor::from_table(Material::Copper, Size::parse("12").unwrap(), Conduit::Pvc, 1000.0, 2, 75.0, 60.0).unwrap();
+    let two = Conductor::from_table(
+        Material::Copper,
+        Size::parse("12").unwrap(),
+        Conduit::Pvc,
+        1000.0,
+        2,
+        75.0,
+        60.0,
+    )
+    .unwrap();
     close(two.impedance().re, 1.0, 1e-12);
 }
 
@@ -154,10 +276,15 @@ fn iec_60228_class_2_resistance() {
     let km_in_ft = 1000.0 / 0.3048;
     for (size, cu, al) in rows {
         let s = Size::parse(size).unwrap_or_else(|| panic!("{size}"));
-        let z = Conductor::from_table(Material::Copper, s, Conduit::Pvc, km_in_ft, 1, 20.0, 50.0).unwrap().impedance();
+        let z = Conductor::from_table(Material::Copper, s, Conduit::Pvc, km_in_ft, 1, 20.0, 50.0)
+            .unwrap()
+            .impedance();
         close(z.re, *cu, 1e-9);
         if let Some(al) = al {
-            let z = Conductor::from_table(Material::Aluminum, s, Conduit::Pvc, km_in_ft, 1, 20.0, 50.0).unwrap().impedance();
+            let z =
+                Conductor::from_table(Material::Aluminum, s, Conduit::Pvc, km_in_ft, 1, 20.0, 50.0)
+                    .unwrap()
+                    .impedance();
             close(z.re, *al, 1e-9);
         }
     }

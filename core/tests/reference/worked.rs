@@ -13,7 +13,17 @@ use tapline_core::transformer::{full_load_current, secondary_from_ratio, turns_r
 /// 6.34 V with Table 8's 1.98 Ω/kft.
 #[test]
 fn voltage_drop_circular_mil_12_awg() {
-    close(circular_mil_drop(CircuitKind::SinglePhase, Material::Copper, 16.0, 100.0, 6530.0), 6.32, 0.005);
+    close(
+        circular_mil_drop(
+            CircuitKind::SinglePhase,
+            Material::Copper,
+            16.0,
+            100.0,
+            6530.0,
+        ),
+        6.32,
+        0.005,
+    );
     close(2.0 * 16.0 * 0.198, 6.34, 0.005);
 }
 
@@ -23,9 +33,17 @@ fn voltage_drop_circular_mil_12_awg() {
 /// within 0.01 %.
 #[test]
 fn voltage_drop_ieee_141_250_kcmil() {
-    let z = Conductor::from_table(Material::Copper, Size::parse("250 kcmil").unwrap(), Conduit::Pvc, 300.0, 1, 75.0, 60.0)
-        .unwrap()
-        .impedance();
+    let z = Conductor::from_table(
+        Material::Copper,
+        Size::parse("250 kcmil").unwrap(),
+        Conduit::Pvc,
+        300.0,
+        1,
+        75.0,
+        60.0,
+    )
+    .unwrap()
+    .impedance();
     let ln = approximate_drop(200.0, z.re, z.im, 0.85);
     close(ln, 3.95, 0.005);
     close(ln * CircuitKind::ThreePhase.multiplier(), 6.84, 0.005);
@@ -53,9 +71,17 @@ fn network_drop_matches_ieee_141_approximation() {
     let r = report(&text);
     let drop = r.legs["L1"].voltage_drop_v.unwrap();
     let i = r.legs["L1"].current_a;
-    let z = Conductor::from_table(Material::Copper, Size::parse("250").unwrap(), Conduit::Pvc, 300.0, 1, 75.0, 60.0)
-        .unwrap()
-        .impedance();
+    let z = Conductor::from_table(
+        Material::Copper,
+        Size::parse("250").unwrap(),
+        Conduit::Pvc,
+        300.0,
+        1,
+        75.0,
+        60.0,
+    )
+    .unwrap()
+    .impedance();
     close_rel(drop, approximate_drop(i, z.re, z.im, 0.85), 0.01);
     // Balanced: no neutral current (phasors cancel).
     assert!(r.neutral_current_a < 1e-9 * i);
@@ -113,9 +139,11 @@ fn three_phase_four_wire_neutral_current() {
 /// two equal resistive legs put a neutral current equal to each leg's current.
 #[test]
 fn two_phases_of_a_wye_do_not_cancel() {
-    let r = report(r#"{"system":{"kind":"wye","phases":2,"volts_to_neutral":120},"loads":[
+    let r = report(
+        r#"{"system":{"kind":"wye","phases":2,"volts_to_neutral":120},"loads":[
         {"connect":"L1-N","model":"resistive","watts":1200},
-        {"connect":"L2-N","model":"resistive","watts":1200}]}"#);
+        {"connect":"L2-N","model":"resistive","watts":1200}]}"#,
+    );
     close(r.legs["L1"].current_a, 10.0, 1e-9);
     close(r.neutral_current_a, 10.0, 1e-9);
 }
@@ -151,12 +179,22 @@ fn triplen_harmonics_add_in_a_wye_neutral() {
 #[test]
 fn odd_harmonics_cancel_in_split_phase() {
     let load = |c: &str| {
-        format!(r#"{{"connect":"{c}","model":"electronic","watts":600,"rated_v":120,"harmonics":[[3,0.8],[5,0.6],[7,0.4]]}}"#)
+        format!(
+            r#"{{"connect":"{c}","model":"electronic","watts":600,"rated_v":120,"harmonics":[[3,0.8],[5,0.6],[7,0.4]]}}"#
+        )
     };
-    let text = format!(r#"{{"system":{{"kind":"split-phase"}},"loads":[{},{}]}}"#, load("L1-N"), load("L2-N"));
+    let text = format!(
+        r#"{{"system":{{"kind":"split-phase"}},"loads":[{},{}]}}"#,
+        load("L1-N"),
+        load("L2-N")
+    );
     let r = report(&text);
     assert!(r.legs["L1"].current_a > 5.0);
-    assert!(r.neutral_current_a < 1e-9, "neutral {}", r.neutral_current_a);
+    assert!(
+        r.neutral_current_a < 1e-9,
+        "neutral {}",
+        r.neutral_current_a
+    );
 }
 
 /// Source: exam problem on an open split-phase neutral: 210/105 V with 50 Ω and 25 Ω on opposite
@@ -243,7 +281,9 @@ fn neutral_drop_raises_the_light_leg() {
 fn turns_ratio_7200_to_240() {
     close(turns_ratio(7200.0, 240.0), 30.0, 1e-12);
     close(secondary_from_ratio(7200.0, 30.0), 240.0, 1e-12);
-    let r = report(r#"{"system":{"kind":"split-phase"},"transformer":{"kva":25,"primary_v":7200,"impedance_pct":2}}"#);
+    let r = report(
+        r#"{"system":{"kind":"split-phase"},"transformer":{"kva":25,"primary_v":7200,"impedance_pct":2}}"#,
+    );
     let t = r.transformer.unwrap();
     close(t.turns_ratio, 30.0, 1e-12);
     close(t.half_winding_ratio.unwrap(), 60.0, 1e-12);
@@ -255,14 +295,18 @@ fn turns_ratio_7200_to_240() {
 /// three-phase: 208.2 A; at 3 %: 6940 A.
 #[test]
 fn transformer_full_load_and_fault_current() {
-    let r = report(r#"{"system":{"kind":"split-phase"},"transformer":{"kva":25,"primary_v":7200,"impedance_pct":2,"x_over_r":1.5}}"#);
+    let r = report(
+        r#"{"system":{"kind":"split-phase"},"transformer":{"kva":25,"primary_v":7200,"impedance_pct":2,"x_over_r":1.5}}"#,
+    );
     let t = r.transformer.unwrap();
     close(t.full_load_a, 104.17, 0.005);
     close(t.available_fault_a, 5208.3, 0.05);
     let v_ln = 208.0 / 3f64.sqrt();
     let wye = System::new(SystemKind::Wye { phases: 3 }, v_ln, 60.0).unwrap();
     close(full_load_current(75.0, &wye), 208.2, 0.05);
-    let text = format!(r#"{{"system":{{"kind":"wye","volts_to_neutral":{v_ln}}},"transformer":{{"kva":75,"primary_v":12470,"impedance_pct":3}}}}"#);
+    let text = format!(
+        r#"{{"system":{{"kind":"wye","volts_to_neutral":{v_ln}}},"transformer":{{"kva":75,"primary_v":12470,"impedance_pct":3}}}}"#
+    );
     let r = report(&text);
     close(r.transformer.unwrap().available_fault_a, 6940.0, 1.0);
 }
@@ -273,15 +317,23 @@ fn transformer_full_load_and_fault_current() {
 #[test]
 fn center_tapped_line_to_neutral_fault_exceeds_line_to_line() {
     for xr in [0.5, 1.0, 1.5, 2.5, 4.0] {
-        let text = format!(r#"{{"system":{{"kind":"split-phase"}},"transformer":{{"kva":50,"primary_v":7200,"impedance_pct":2,"x_over_r":{xr}}}}}"#);
+        let text = format!(
+            r#"{{"system":{{"kind":"split-phase"}},"transformer":{{"kva":50,"primary_v":7200,"impedance_pct":2,"x_over_r":{xr}}}}}"#
+        );
         let t = report(&text).transformer.unwrap();
         let ratio = t.available_fault_ln_a / t.available_fault_a;
         assert!((1.33..=1.67).contains(&ratio), "X/R {xr}: ratio {ratio}");
         // The half-winding rule itself: Z_LN on the 120 V base equals (1.5R + j1.2X) of the full
         // winding in per unit.
-        let z_pu_full = (t.impedance_r_ohm.powi(2) + t.impedance_x_ohm.powi(2)).sqrt() / (240.0 * 240.0 / 50_000.0);
-        let half = ((1.5 * t.impedance_r_ohm).powi(2) + (1.2 * t.impedance_x_ohm).powi(2)).sqrt() / (240.0 * 240.0 / 50_000.0);
-        close(120.0 / t.available_fault_ln_a / (120.0 * 120.0 / 50_000.0), half, 1e-9);
+        let z_pu_full = (t.impedance_r_ohm.powi(2) + t.impedance_x_ohm.powi(2)).sqrt()
+            / (240.0 * 240.0 / 50_000.0);
+        let half = ((1.5 * t.impedance_r_ohm).powi(2) + (1.2 * t.impedance_x_ohm).powi(2)).sqrt()
+            / (240.0 * 240.0 / 50_000.0);
+        close(
+            120.0 / t.available_fault_ln_a / (120.0 * 120.0 / 50_000.0),
+            half,
+            1e-9,
+        );
         close(z_pu_full, 0.02, 1e-12);
     }
 }
@@ -292,10 +344,12 @@ fn center_tapped_line_to_neutral_fault_exceeds_line_to_line() {
 /// no source). A motor on the heavy leg of an open split-phase neutral stalls.
 #[test]
 fn motor_stalls_on_the_heavy_leg_of_an_open_neutral() {
-    let r = report(r#"{"system":{"kind":"split-phase"},"neutral":{"state":"open"},"loads":[
+    let r = report(
+        r#"{"system":{"kind":"split-phase"},"neutral":{"state":"open"},"loads":[
         {"name":"Freezer","connect":"L1-N","model":"motor","watts":300,"power_factor":0.75},
         {"name":"Heater","connect":"L1-N","model":"resistive","watts":1500},
-        {"name":"Lamp","connect":"L2-N","model":"lamp","watts":60}]}"#);
+        {"name":"Lamp","connect":"L2-N","model":"lamp","watts":60}]}"#,
+    );
     assert_eq!(r.loads[0].outcome.code(), "stall");
     assert!(r.loads[0].voltage_v.unwrap() < 120.0 * 0.71);
     assert_eq!(r.loads[2].outcome.code(), "likely_damage");
@@ -305,7 +359,9 @@ fn motor_stalls_on_the_heavy_leg_of_an_open_neutral() {
 /// V^0.54 and its power as V^1.54, so at 90 % voltage it draws 0.9^1.54 ≈ 85 % power.
 #[test]
 fn lamp_power_exponent() {
-    let r = report(r#"{"system":{"kind":"split-phase","volts_to_neutral":108},"loads":[
-        {"connect":"L1-N","model":"lamp","watts":100,"rated_v":120}]}"#);
+    let r = report(
+        r#"{"system":{"kind":"split-phase","volts_to_neutral":108},"loads":[
+        {"connect":"L1-N","model":"lamp","watts":100,"rated_v":120}]}"#,
+    );
     close(r.loads[0].power_w, 100.0 * 0.9f64.powf(1.54), 1e-9);
 }

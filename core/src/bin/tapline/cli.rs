@@ -169,3 +169,30 @@ fn library_json() -> Vec<LibraryEntry> {
         })
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use tapline_core::solve::SolveError;
+
+    /// A solve that does not converge maps to exit code 3 with its message; valid jobs cannot be
+    /// made to fail on purpose, so the mapping is checked directly.
+    #[test]
+    fn no_convergence_exits_3() {
+        let f = engine(EngineError::Solve(SolveError::NoConvergence {
+            iterations: 200,
+        }));
+        assert_eq!(f.code, EXIT_NO_SOLVE);
+        assert!(f.message.contains("did not settle after 200 iterations"));
+        let f = engine(EngineError::Solve(SolveError::Singular));
+        assert_eq!(f.code, EXIT_NO_SOLVE);
+    }
+
+    #[test]
+    fn help_lists_every_command() {
+        let out = run(vec!["--help".to_string()]).ok().unwrap();
+        for c in ["solve", "whatif", "sweep", "library", "demo"] {
+            assert!(out.contains(&format!("tapline {c}")), "{c}");
+        }
+    }
+}

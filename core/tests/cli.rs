@@ -1,0 +1,240 @@
+//! The `tapline` command: good jobs, each class of bad input, and exit codes.
+
+use std::io::Write;
+use std::process::{Command, Output, Stdio};
+
+fn tapline(args: &[&str], stdin: Option<&str>) -> Output {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_tapline"))
+        .args(args)
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    if let Some(text) = stdin {
+        child
+            .stdin
+            .take()
+            .unwrap()
+            .write_all(text.as_bytes())
+            .unwrap();
+    }
+    drop(child.stdin.take());
+    child.wait_with_output().unwrap()
+}
+
+fn data(name: &str) -> String {
+    format!("{}/tests/data/{name}", env!("CARGO_MANIFEST_DIR"))
+}
+
+fn stdout_json(out: &Output) -> serde_json::Value {
+    serde_json::from_slice(&out.stdout).unwrap_or_else(|e| {
+        panic!(
+            "stdout is not JSON ({e}): {}",
+            String::from_utf8_lossy(&out.stdout)
+        )
+    })
+}
+
+#[test]
+fn solve_prints_the_report_fields_the_format_promises() {
+    let out = tapline(&["solve", &data("alder-court.json")], None);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let r = stdout_json(&out);
+    for leg in ["L1", "L2"] {
+        assert!(r["legs"][leg]["current_a"].as_f64().unwrap() > 0.0);
+        assert!(r["legs"][leg]["volts_to_neutral"].as_f64().unwrap() > 0.0);
+    }
+    assert!(r["neutral_current_a"].as_f64().unwrap() > 0.0);
+    assert_eq!(r["transformer"]["turns_ratio"].as_f64().unwrap(), 30.0);
+    assert!(r["transformer"]["full_load_a"].as_f64().unwrap() > 100.0);
+    assert!(
+        r["transformer"]["available_fault_ln_a"].as_f64().unwrap()
+            > r["transformer"]["available_fault_a"].as_f64().unwrap()
+    );
+    let loads = r["loads"].as_array().unwrap();
+    assert_eq!(loads[0]["name"], "Space heater");
+    assert_eq!(loads[1]["name"], "Freezer");
+    for l in loads {
+        for field in ["voltage_v", "current_a", "percent_of_rated"] {
+            assert!(l[field].is_number(), "{field} in {l}");
+        }
+        assert!(l["outcome"].is_string());
+    }
+    // The loose neutral lowers the heavy leg and raises the light one.
+    assert!(loads[0]["voltage_v"].as_f64().unwrap() < 120.0);
+    assert!(loads[1]["voltage_v"].as_f64().unwrap() > 120.0);
+}
+
+#[test]
+fn solve_reads_standard_input() {
+    let text = std::fs::read_to_string(data("alder-court.json")).unwrap();
+    let out = tapline(&["solve", "-"], Some(&text));
+    assert_eq!(out.status.code(), Some(0));
+    assert_eq!(stdout_json(&out)["name"], "14 Alder Court");
+}
+
+#[test]
+fn bad_fields_exit_2_with_one_line_per_problem_and_nothing_on_stdout() {
+    let job = r#"{"version":1,"system":{"kind":"split-phase"},"loads":[
+        {"connect":"L1-N","model":"resistive","watts":1500},
+        {"connect":"L1-N","model":"resistive","watts":100},
+        {"connect":"L3-N","model":"toaster","watts":-5}]}"#;
+    let out = tapline(&["solve", "-"], Some(job));
+    assert_eq!(out.status.code(), Some(2));
+    assert!(out.stdout.is_empty());
+    let err = String::from_utf8_lossy(&out.stderr);
+    let lines: Vec<&str> = err.lines().collect();
+    assert!(
+        lines.iter().any(|l| l.starts_with("loads[2].connect: ")),
+        "{err}"
+    );
+    assert!(
+        lines.iter().any(|l| l.starts_with("loads[2].model: ")),
+        "{err}"
+    );
+    assert!(
+        lines
+            .iter()
+            .any(|l| l.starts_with("loads[2].watts: must be a positive number")),
+        "{err}"
+    );
+    assert_eq!(lines.len(), 3, "{err}");
+    assert!(!err.contains("panicked"));
+}
+
+#[test]
+fn each_class_of_bad_input_is_named() {
+    let cases: &[(&str, &str)] = &[
+        ("{not json", "job: not valid JSON"),
+        ("[1,2]", "job: must be a JSON object"),
+        (r#"{"loads":[]}"#, "system: is required"),
+        (
+            r#"{"system":{"kind":"delta"}}"#,
+            "system.kind: must be split-phase or wye",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase","volts_to_neutral":"lots"}}"#,
+            "system.volts_to_neutral: must be a positive number",
+        ),
+        (
+            r#"{"version":7,"system":{"kind":"split-phase"}}"#,
+            "version: job format 7 is newer",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"neutral":{"state":"loose"}}"#,
+            "neutral.ohms: is required",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"neutral":{"state":"wobbly"}}"#,
+            "neutral.state: must be intact, loose or open",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"transformer":{"kva":25,"primary_v":7200}}"#,
+            "transformer.impedance_pct: is required",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"service":{"hot":{"material":"gold","size":"4/0","length_m":3}}}"#,
+            "service.hot.material: must be cu or al",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"service":{"hot":{"material":"al","size":"5/0","length_m":3}}}"#,
+            "service.hot.size: \"5/0\" is not a known size",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"service":{"hot":{"material":"al","size":"4/0"}}}"#,
+            "service.hot.length_m: is required",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"loads":[{"connect":"L1-N","model":"lamp","watts":60,"power_factor":0.5}]}"#,
+            "loads[0].power_factor: a lamp load has power factor 1",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"loads":[{"connect":"L1-N","model":"resistive","watts":1e9}]}"#,
+            "loads[0].watts: must be a positive number up to 1000000",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"loads":"none"}"#,
+            "loads: must be a list of loads",
+        ),
+    ];
+    for (job, expected) in cases {
+        let out = tapline(&["solve", "-"], Some(job));
+        assert_eq!(out.status.code(), Some(2), "{job}");
+        assert!(out.stdout.is_empty(), "{job}");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(
+            err.contains(expected),
+            "for {job}\nexpected {expected:?} in:\n{err}"
+        );
+    }
+}
+
+#[test]
+fn missing_file_and_bad_usage_exit_2() {
+    let out = tapline(&["solve", "/nonexistent/job.json"], None);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("/nonexistent/job.json: cannot read"));
+    assert_eq!(tapline(&[], None).status.code(), Some(2));
+    assert_eq!(tapline(&["frobnicate"], None).status.code(), Some(2));
+    assert_eq!(
+        tapline(&["sweep", "-", "--points", "2"], Some("{}"))
+            .status
+            .code(),
+        Some(2)
+    );
+}
+
+#[test]
+fn sweep_prints_json_and_csv_from_solid_to_open() {
+    let out = tapline(
+        &["sweep", &data("alder-court.json"), "--points", "50"],
+        None,
+    );
+    assert_eq!(out.status.code(), Some(0));
+    let s = stdout_json(&out);
+    let ohms = s["neutral_ohms"].as_array().unwrap();
+    assert_eq!(ohms.len(), 50);
+    assert_eq!(ohms[0], 0.0);
+    assert!(ohms[49].is_null());
+    let heater = s["loads"][0]["volts"].as_array().unwrap();
+    assert!(heater[0].as_f64().unwrap() > heater[49].as_f64().unwrap());
+
+    let out = tapline(
+        &[
+            "sweep",
+            &data("alder-court.json"),
+            "--csv",
+            "--points",
+            "10",
+        ],
+        None,
+    );
+    let csv = String::from_utf8(out.stdout).unwrap();
+    let rows: Vec<&str> = csv.lines().collect();
+    assert_eq!(rows[0], "neutral_ohms,Space heater,Freezer");
+    assert_eq!(rows.len(), 11);
+    assert!(rows[10].starts_with("open,"));
+}
+
+#[test]
+fn whatif_library_and_demo() {
+    let out = tapline(&["whatif", &data("alder-court.json")], None);
+    assert_eq!(out.status.code(), Some(0));
+    let w = stdout_json(&out);
+    assert_eq!(w["intact"]["neutral"]["state"], "intact");
+    assert_eq!(w["open"]["neutral"]["state"], "open");
+    let lib = stdout_json(&tapline(&["library"], None));
+    assert!(lib.as_array().unwrap().len() >= 15);
+    let demo = tapline(&["demo"], None);
+    let solved = tapline(
+        &["solve", "-"],
+        Some(&String::from_utf8(demo.stdout).unwrap()),
+    );
+    assert_eq!(solved.status.code(), Some(0));
+}
