@@ -74,10 +74,8 @@ mod gen {
                 if m == "impedance" || m == "motor" || m == "electronic" {
                     l["power_factor"] = json!(pf);
                 }
-                if m == "electronic" {
-                    if harmonics {
-                        l["harmonics"] = json!([[3, 0.8], [5, 0.5], [7, 0.2]]);
-                    }
+                if m == "electronic" && harmonics {
+                    l["harmonics"] = json!([[3, 0.8], [5, 0.5], [7, 0.2]]);
                 }
                 if let Some(b) = branch {
                     l["branch"] = b;
