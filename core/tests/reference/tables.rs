@@ -7,6 +7,7 @@ use tapline_core::conductors::{table8_dc_ohm_per_kft, Conductor, Conduit, Materi
 /// Source: NFPA 70 (NEC) Chapter 9 Table 8, DC resistance at 75 °C, Ω/kft, stranded copper and
 /// aluminum (2008 edition; rows 14–1/0 read, larger rows read in a faithful reproduction).
 #[test]
+#[allow(clippy::approx_constant)] // 3.14 Ω/kft is Table 8's 14 AWG value, not π.
 fn nec_table_8_dc_resistance() {
     let rows: &[(&str, f64, f64)] = &[
         ("14", 3.14, 5.17),
@@ -60,7 +61,8 @@ fn nec_table_8_follows_the_circular_mil_constant() {
 #[test]
 fn nec_table_9_ac_impedance() {
     // (size, X PVC, X steel, Cu PVC/Al/steel, Al wire PVC/Al/steel)
-    let rows: &[(&str, f64, f64, [f64; 3], Option<[f64; 3]>)] = &[
+    type Row = (&'static str, f64, f64, [f64; 3], Option<[f64; 3]>);
+    let rows: &[Row] = &[
         ("14", 0.058, 0.073, [3.1, 3.1, 3.1], None),
         ("12", 0.054, 0.068, [2.0, 2.0, 2.0], Some([3.2, 3.2, 3.2])),
         ("10", 0.050, 0.063, [1.2, 1.2, 1.2], Some([2.0, 2.0, 2.0])),
