@@ -232,8 +232,8 @@ fn open_wye_neutral_millman() {
             watts[0], watts[1], watts[2]
         );
         let r = report(&text);
-        for k in 0..3 {
-            close(r.loads[k].voltage_v.unwrap(), expected[k], 0.006);
+        for (load, want) in r.loads.iter().zip(expected) {
+            close(load.voltage_v.unwrap(), want, 0.006);
         }
     }
 }
