@@ -12,12 +12,8 @@ fn tapline(args: &[&str], stdin: Option<&str>) -> Output {
         .spawn()
         .unwrap();
     if let Some(text) = stdin {
-        child
-            .stdin
-            .take()
-            .unwrap()
-            .write_all(text.as_bytes())
-            .unwrap();
+        // The command may exit before reading (a usage error); a broken pipe is then expected.
+        let _ = child.stdin.take().unwrap().write_all(text.as_bytes());
     }
     drop(child.stdin.take());
     child.wait_with_output().unwrap()
