@@ -1,1 +1,111 @@
-fn main() {}
+//! Speed of the engine: a 40-load split-phase job with non-linear loads, a 500-point neutral
+//! sweep of it, and, for comparison, ngspice solving the same network (linearised at the engine's
+//! solution) in batch mode. Targets: solve < 20 µs median, sweep < 10 ms median.
+
+use criterion::{criterion_group, criterion_main, Criterion};
+use serde_json::json;
+use std::fmt::Write as _;
+use std::hint::black_box;
+use tapline_core::network::{Network, Node};
+use tapline_core::solve::solve;
+use tapline_core::whatif::{sweep, sweep_points};
+
+/// A house-sized job: 40 loads of every model on both legs and across, a transformer, service
+/// conductors and a loose neutral.
+fn forty_load_job() -> tapline_core::validate::Job {
+    let models = [
+        ("resistive", 1500.0, 1.0),
+        ("motor", 400.0, 0.8),
+        ("electronic", 150.0, 0.95),
+        ("lamp", 60.0, 1.0),
+        ("impedance", 800.0, 0.9),
+    ];
+    let mut loads = Vec::new();
+    for k in 0..40 {
+        let (model, watts, pf) = models[k % models.len()];
+        let connect = match k % 7 {
+            6 => "L1-L2",
+            n if n % 2 == 0 => "L1-N",
+            _ => "L2-N",
+        };
+        let rated = if connect == "L1-L2" { 240.0 } else { 120.0 };
+        let mut l = json!({"name":format!("load {k}"),"connect":connect,"model":model,
+            "watts":watts * (1.0 + (k as f64) / 40.0) / 4.0,"rated_v":rated,"power_factor":pf});
+        if model == "electronic" {
+            l["harmonics"] = json!([[3, 0.8], [5, 0.6], [7, 0.4]]);
+        }
+        loads.push(l);
+    }
+    let job = json!({"version":1,"name":"bench","system":{"kind":"split-phase"},
+        "transformer":{"kva":50,"primary_v":7200,"impedance_pct":2.0,"x_over_r":1.5},
+        "service":{"hot":{"material":"al","size":"4/0","length_m":30},"neutral":{"material":"al","size":"2/0","length_m":30}},
+        "neutral":{"state":"loose","ohms":0.5},"loads":loads});
+    tapline_core::load_job(&job.to_string())
+        .expect("bench job is valid")
+        .1
+}
+
+/// The same network as a SPICE netlist, each load as the linear impedance it settled at.
+fn netlist(net: &Network) -> String {
+    let sol = solve(net).expect("solves");
+    let mut n = String::from("bench\n");
+    for (k, e) in net.emf().iter().take(2).enumerate() {
+        writeln!(n, "VE{k} e{k} 0 AC {} {}", e.norm(), e.arg().to_degrees()).unwrap();
+        // A diagonal source stands in for the coupled one: ngspice's time is what is measured.
+        writeln!(n, "RS{k} e{k} p{k} 0.03").unwrap();
+    }
+    n.push_str("RN pn 0 0.6\n");
+    let name = |node: Node| match node {
+        Node::Hot(l) => format!("p{}", l.index()),
+        Node::Neutral => "pn".to_string(),
+    };
+    for (k, (p, r)) in net.loads().iter().zip(&sol.loads).enumerate() {
+        let z = r.terminal_v.unwrap() / r.current;
+        writeln!(n, "R{k} {} m{k} {}", name(p.a), z.re).unwrap();
+        writeln!(
+            n,
+            "L{k} m{k} {} {}",
+            name(p.b),
+            z.im.max(1e-9) / (2.0 * std::f64::consts::PI * 60.0)
+        )
+        .unwrap();
+    }
+    n.push_str(".control\nac lin 1 60 60\nprint v(p0) v(p1) v(pn)\nquit 0\n.endc\n.end\n");
+    n
+}
+
+fn benches(c: &mut Criterion) {
+    let job = forty_load_job();
+    let net = Network::new(&job);
+    c.bench_function("solve 40-load split-phase job", |b| {
+        b.iter(|| solve(black_box(&net)).unwrap())
+    });
+    let points = sweep_points(500);
+    c.bench_function("sweep 500 neutral resistances", |b| {
+        b.iter(|| sweep(black_box(&job), &points).unwrap())
+    });
+    let spice_ok = std::process::Command::new("ngspice")
+        .arg("--version")
+        .output()
+        .is_ok();
+    if spice_ok {
+        let path = std::env::temp_dir().join("tapline-bench.cir");
+        std::fs::write(&path, netlist(&net)).unwrap();
+        let mut group = c.benchmark_group("ngspice");
+        group.sample_size(20);
+        group.bench_function("ngspice -b, same network (process start included)", |b| {
+            b.iter(|| {
+                let out = std::process::Command::new("ngspice")
+                    .arg("-b")
+                    .arg(&path)
+                    .output()
+                    .unwrap();
+                assert!(out.status.success());
+            })
+        });
+        group.finish();
+    }
+}
+
+criterion_group!(engine, benches);
+criterion_main!(engine);

@@ -151,13 +151,182 @@ pub const MOTOR: KindLimits = KindLimits {
 /// NEMA MG 1 §12.44 tolerance for motors running at rated load, ± fraction of rated voltage.
 pub const MOTOR_TOLERANCE: f64 = 0.10;
 
-/// The outcome for a load at terminal voltage `volts` in `state`, with a one-line reason.
-pub fn classify(load: &Load, volts: f64, state: State, on: bool) -> (Outcome, String) {
+/// Why an outcome was given: the facts for the one-line sentence, which is only written when asked
+/// for (the sweep needs thousands of outcomes and no sentences).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Why {
+    Off,
+    /// Stalled because its voltage is below the stall point.
+    StalledLow {
+        v: f64,
+        f: f64,
+    },
+    /// Stalled because the supply collapses when it runs.
+    StalledCollapse {
+        v: f64,
+    },
+    DroppedLow {
+        v: f64,
+        min_v: f64,
+    },
+    DroppedCollapse {
+        v: f64,
+    },
+    AboveInput {
+        v: f64,
+        max_v: f64,
+    },
+    NearInputEdge {
+        v: f64,
+        min_v: f64,
+        max_v: f64,
+    },
+    InsideInput {
+        v: f64,
+        min_v: f64,
+        max_v: f64,
+    },
+    RangeA {
+        v: f64,
+        f: f64,
+    },
+    HighRangeB {
+        v: f64,
+        f: f64,
+    },
+    LowRangeB {
+        v: f64,
+        f: f64,
+    },
+    Damage {
+        model: Model,
+        v: f64,
+        f: f64,
+    },
+    Over {
+        model: Model,
+        v: f64,
+        f: f64,
+    },
+    Under {
+        model: Model,
+        v: f64,
+        f: f64,
+    },
+}
+
+impl std::fmt::Display for Why {
+    fn fmt(&self, out: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match *self {
+            Why::Off => write!(out, "switched off"),
+            Why::StalledLow { v, f } => write!(
+                out,
+                "gets {v:.0} V ({:.0} %): too low to keep turning; it stalls and draws locked-rotor current until its overload trips",
+                f * 100.0
+            ),
+            Why::StalledCollapse { v } => write!(
+                out,
+                "the supply sags too far when it runs, so it stalls (locked-rotor, {v:.0} V) until its overload trips"
+            ),
+            Why::DroppedLow { v, min_v } => write!(
+                out,
+                "gets {v:.0} V: below its {min_v:.0} V input range, so it shuts off or keeps restarting"
+            ),
+            Why::DroppedCollapse { v } => write!(
+                out,
+                "the supply sags too far at its full power, so it shuts off or keeps restarting ({v:.0} V while off)"
+            ),
+            Why::AboveInput { v, max_v } => write!(
+                out,
+                "gets {v:.0} V: above its {max_v:.0} V input limit; its power supply is likely to fail"
+            ),
+            Why::NearInputEdge { v, min_v, max_v } => write!(
+                out,
+                "gets {v:.0} V: near the edge of its {min_v:.0}–{max_v:.0} V input range"
+            ),
+            Why::InsideInput { v, min_v, max_v } => write!(
+                out,
+                "gets {v:.0} V: inside its {min_v:.0}–{max_v:.0} V input range"
+            ),
+            Why::RangeA { v, f } => write!(
+                out,
+                "gets {v:.0} V ({:.0} % of rated): within ANSI C84.1 Range A",
+                f * 100.0
+            ),
+            Why::HighRangeB { v, f } => write!(
+                out,
+                "gets {v:.0} V ({:.0} %): high, within ANSI C84.1 Range B",
+                f * 100.0
+            ),
+            Why::LowRangeB { v, f } => write!(
+                out,
+                "gets {v:.0} V ({:.0} %): low, within ANSI C84.1 Range B",
+                f * 100.0
+            ),
+            Why::Damage { model, v, f } => match model {
+                Model::Resistive => write!(
+                    out,
+                    "gets {v:.0} V ({:.0} % power): its {} is likely to burn out within minutes",
+                    f * f * 100.0,
+                    RESISTIVE.part
+                ),
+                Model::Lamp => write!(
+                    out,
+                    "gets {v:.0} V: its {} runs so hot it keeps about {:.0} % of its life and is likely to burn out soon",
+                    LAMP.part,
+                    f.powf(LAMP_LIFE_EXPONENT) * 100.0
+                ),
+                _ => write!(
+                    out,
+                    "gets {v:.0} V ({:.0} %): its {} is likely to be damaged",
+                    f * 100.0,
+                    limits_of(model).part
+                ),
+            },
+            Why::Over { model, v, f } => match model {
+                Model::Resistive => write!(out, "gets {v:.0} V: runs at {:.0} % power and overheats", f * f * 100.0),
+                Model::Lamp => write!(
+                    out,
+                    "gets {v:.0} V: burns brighter with about {:.0} % of its normal life",
+                    f.powf(LAMP_LIFE_EXPONENT) * 100.0
+                ),
+                _ => write!(
+                    out,
+                    "gets {v:.0} V ({:.0} %): over-voltage stresses its {}",
+                    f * 100.0,
+                    limits_of(model).part
+                ),
+            },
+            Why::Under { model, v, f } => match model {
+                Model::Resistive => write!(out, "gets {v:.0} V: heats slowly at {:.0} % power", f * f * 100.0),
+                Model::Lamp => write!(out, "gets {v:.0} V ({:.0} %): dim", f * 100.0),
+                Model::Motor => write!(
+                    out,
+                    "gets {v:.0} V ({:.0} %): runs slow and hot, drawing extra current",
+                    f * 100.0
+                ),
+                _ => write!(out, "gets {v:.0} V ({:.0} %): under-voltage", f * 100.0),
+            },
+        }
+    }
+}
+
+fn limits_of(model: Model) -> KindLimits {
+    match model {
+        Model::Resistive => RESISTIVE,
+        Model::Lamp => LAMP,
+        Model::Motor => MOTOR,
+        _ => IMPEDANCE,
+    }
+}
+
+/// The outcome for a load at terminal voltage `volts` (its own terminals, after any branch drop) in
+/// `state`, with the facts behind it. `Why` prints the one-line reason.
+pub fn classify(load: &Load, volts: f64, state: State, on: bool) -> (Outcome, Why) {
     if !on {
-        return (Outcome::Off, "switched off".to_string());
+        return (Outcome::Off, Why::Off);
     }
     let f = volts / load.rated_v();
-    let pct = f * 100.0;
     let v = volts;
     let lighting = matches!(load.model(), Model::Lamp);
     let ua_min = if lighting {
@@ -173,110 +342,46 @@ pub fn classify(load: &Load, volts: f64, state: State, on: bool) -> (Outcome, St
     let in_a = f >= ua_min && f <= ansi::UTILIZATION_A.1;
     let in_b = f >= ub_min && f <= ansi::UTILIZATION_B.1;
     match (load.model(), state) {
-        (Model::Motor, State::Stalled) if f < crate::loads::MOTOR_BREAKDOWN_TORQUE.sqrt().recip() => (
-            Outcome::Stall,
-            format!("gets {v:.0} V ({pct:.0} %): too low to keep turning; it stalls and draws locked-rotor current until its overload trips"),
-        ),
-        (Model::Motor, State::Stalled) => (
-            Outcome::Stall,
-            format!("the supply sags too far when it runs, so it stalls (locked-rotor, {v:.0} V) until its overload trips"),
-        ),
-        (Model::Electronic { min_v, .. }, State::DroppedOut) if volts < min_v => (
-            Outcome::UnderVoltage,
-            format!("gets {v:.0} V: below its {min_v:.0} V input range, so it shuts off or keeps restarting"),
-        ),
-        (Model::Electronic { .. }, State::DroppedOut) => (
-            Outcome::UnderVoltage,
-            format!("the supply sags too far at its full power, so it shuts off or keeps restarting ({v:.0} V while off)"),
-        ),
+        (Model::Motor, State::Stalled)
+            if f < crate::loads::MOTOR_BREAKDOWN_TORQUE.sqrt().recip() =>
+        {
+            (Outcome::Stall, Why::StalledLow { v, f })
+        }
+        (Model::Motor, State::Stalled) => (Outcome::Stall, Why::StalledCollapse { v }),
+        (Model::Electronic { min_v, .. }, State::DroppedOut) if volts < min_v => {
+            (Outcome::UnderVoltage, Why::DroppedLow { v, min_v })
+        }
+        (Model::Electronic { .. }, State::DroppedOut) => {
+            (Outcome::UnderVoltage, Why::DroppedCollapse { v })
+        }
         (Model::Electronic { min_v, max_v }, _) => {
             if volts > max_v {
-                (
-                    Outcome::LikelyDamage,
-                    format!("gets {v:.0} V: above its {max_v:.0} V input limit; its power supply is likely to fail"),
-                )
+                (Outcome::LikelyDamage, Why::AboveInput { v, max_v })
             } else if volts > 0.95 * max_v || volts < 1.05 * min_v {
-                (
-                    Outcome::Marginal,
-                    format!("gets {v:.0} V: near the edge of its {min_v:.0}–{max_v:.0} V input range"),
-                )
+                (Outcome::Marginal, Why::NearInputEdge { v, min_v, max_v })
             } else {
-                (Outcome::Normal, format!("gets {v:.0} V: inside its {min_v:.0}–{max_v:.0} V input range"))
+                (Outcome::Normal, Why::InsideInput { v, min_v, max_v })
             }
         }
         (model, _) => {
-            let limits = match model {
-                Model::Resistive => RESISTIVE,
-                Model::Lamp => LAMP,
-                Model::Motor => MOTOR,
-                _ => IMPEDANCE,
-            };
+            let limits = limits_of(model);
             if in_a {
-                return (Outcome::Normal, format!("gets {v:.0} V ({pct:.0} % of rated): within ANSI C84.1 Range A"));
+                return (Outcome::Normal, Why::RangeA { v, f });
             }
             if f > 1.0 {
                 if f >= limits.damage_above {
-                    return (Outcome::LikelyDamage, damage_sentence(model, limits, v, f));
+                    return (Outcome::LikelyDamage, Why::Damage { model, v, f });
                 }
                 if in_b && !(model == Model::Motor && f > 1.0 + MOTOR_TOLERANCE) {
-                    return (Outcome::Marginal, format!("gets {v:.0} V ({pct:.0} %): high, within ANSI C84.1 Range B"));
+                    return (Outcome::Marginal, Why::HighRangeB { v, f });
                 }
-                return (Outcome::OverVoltage, over_sentence(model, limits, v, f));
+                return (Outcome::OverVoltage, Why::Over { model, v, f });
             }
             let motor_ok = model == Model::Motor && f >= 1.0 - MOTOR_TOLERANCE;
             if in_b || motor_ok {
-                return (Outcome::Marginal, format!("gets {v:.0} V ({pct:.0} %): low, within ANSI C84.1 Range B"));
+                return (Outcome::Marginal, Why::LowRangeB { v, f });
             }
-            (Outcome::UnderVoltage, under_sentence(model, v, f))
+            (Outcome::UnderVoltage, Why::Under { model, v, f })
         }
-    }
-}
-
-fn damage_sentence(model: Model, limits: KindLimits, v: f64, f: f64) -> String {
-    match model {
-        Model::Resistive => format!(
-            "gets {v:.0} V ({:.0} % power): its {} is likely to burn out within minutes",
-            f * f * 100.0,
-            limits.part
-        ),
-        Model::Lamp => format!(
-            "gets {v:.0} V: its {} runs so hot it keeps about {:.0} % of its life and is likely to burn out soon",
-            limits.part,
-            f.powf(LAMP_LIFE_EXPONENT) * 100.0
-        ),
-        _ => format!("gets {v:.0} V ({:.0} %): its {} is likely to be damaged", f * 100.0, limits.part),
-    }
-}
-
-fn over_sentence(model: Model, limits: KindLimits, v: f64, f: f64) -> String {
-    match model {
-        Model::Resistive => format!(
-            "gets {v:.0} V: runs at {:.0} % power and overheats",
-            f * f * 100.0
-        ),
-        Model::Lamp => format!(
-            "gets {v:.0} V: burns brighter with about {:.0} % of its normal life",
-            f.powf(LAMP_LIFE_EXPONENT) * 100.0
-        ),
-        _ => format!(
-            "gets {v:.0} V ({:.0} %): over-voltage stresses its {}",
-            f * 100.0,
-            limits.part
-        ),
-    }
-}
-
-fn under_sentence(model: Model, v: f64, f: f64) -> String {
-    match model {
-        Model::Resistive => format!(
-            "gets {v:.0} V: heats slowly at {:.0} % power",
-            f * f * 100.0
-        ),
-        Model::Lamp => format!("gets {v:.0} V ({:.0} %): dim", f * 100.0),
-        Model::Motor => format!(
-            "gets {v:.0} V ({:.0} %): runs slow and hot, drawing extra current",
-            f * 100.0
-        ),
-        _ => format!("gets {v:.0} V ({:.0} %): under-voltage", f * 100.0),
     }
 }

@@ -211,29 +211,59 @@ impl Load {
     /// stays finite; a load whose converged voltage is below that limit is moved to its low state by
     /// the solver and solved again.
     pub fn admittance(&self, v: f64, state: State) -> Complex64 {
+        self.characteristic().admittance(v, state)
+    }
+
+    /// The load's voltage–current characteristic with its constants worked out once, for the
+    /// solver's inner loop.
+    pub fn characteristic(&self) -> Characteristic {
+        let vr2 = self.rated_v * self.rated_v;
+        let s_conj = self.rated_complex_power().conj();
+        let i_lr = LOCKED_ROTOR_MULTIPLE * self.rated_current();
+        Characteristic {
+            model: self.model,
+            rated_v: self.rated_v,
+            g_rated: self.rated_w / vr2,
+            s_conj,
+            floor_v: self.low_limit_v().unwrap_or(0.0).max(1e-3 * self.rated_v),
+            y_stalled: Complex64::from_polar(i_lr / self.rated_v, -LOCKED_ROTOR_PF.acos()),
+        }
+    }
+}
+
+/// A load's admittance as a function of its terminal voltage, with the constants precomputed.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Characteristic {
+    model: Model,
+    rated_v: f64,
+    /// P/V_r², siemens.
+    g_rated: f64,
+    /// (P + jQ)* at rated voltage, VA.
+    s_conj: Complex64,
+    /// Lowest voltage a constant-power model is evaluated at, volts.
+    floor_v: f64,
+    /// Locked-rotor admittance of a motor, siemens.
+    y_stalled: Complex64,
+}
+
+impl Characteristic {
+    /// See [`Load::admittance`].
+    pub fn admittance(&self, v: f64, state: State) -> Complex64 {
         let vr2 = self.rated_v * self.rated_v;
         match (self.model, state) {
-            (Model::Resistive, _) => Complex64::new(self.rated_w / vr2, 0.0),
-            (Model::Impedance, _) => self.rated_complex_power().conj() / vr2,
+            (Model::Resistive, _) => Complex64::new(self.g_rated, 0.0),
+            (Model::Impedance, _) => self.s_conj / vr2,
             (Model::Lamp, _) => {
                 let frac = (v / self.rated_v).max(LAMP_MIN_FRACTION);
-                Complex64::new(
-                    self.rated_w / vr2 * frac.powf(LAMP_CURRENT_EXPONENT - 1.0),
-                    0.0,
-                )
+                Complex64::new(self.g_rated * frac.powf(LAMP_CURRENT_EXPONENT - 1.0), 0.0)
             }
-            (Model::Motor, State::Stalled) => {
-                let i_lr = LOCKED_ROTOR_MULTIPLE * self.rated_current();
-                let theta = LOCKED_ROTOR_PF.acos();
-                Complex64::from_polar(i_lr / self.rated_v, -theta)
-            }
+            (Model::Motor, State::Stalled) => self.y_stalled,
             (Model::Electronic { .. }, State::DroppedOut) => {
-                Complex64::new(ELECTRONIC_STANDBY_FRACTION * self.rated_w / vr2, 0.0)
+                Complex64::new(ELECTRONIC_STANDBY_FRACTION * self.g_rated, 0.0)
             }
             (Model::Motor | Model::Electronic { .. }, _) => {
-                let floor = self.low_limit_v().unwrap_or(0.0).max(1e-3 * self.rated_v);
-                let v_eff = v.max(floor);
-                self.rated_complex_power().conj() / (v_eff * v_eff)
+                let v_eff = v.max(self.floor_v);
+                self.s_conj / (v_eff * v_eff)
             }
         }
     }

@@ -9,7 +9,7 @@
 //! is given. Loads sit between two nodes; a load's own branch conductors are in series with it.
 
 use crate::linalg::invert3;
-use crate::loads::{Connection, Load};
+use crate::loads::{Characteristic, Connection, Load};
 use crate::system::{Leg, System};
 use crate::validate::{Job, NeutralState};
 use num_complex::Complex64;
@@ -64,6 +64,8 @@ pub struct Placed {
     pub b: Node,
     /// Loop impedance of the branch circuit, ohms (zero without one).
     pub branch: Complex64,
+    /// The load's characteristic with its constants precomputed.
+    pub characteristic: Characteristic,
 }
 
 /// The circuit to solve. Built only from a validated [`Job`], so it is always well formed.
@@ -72,6 +74,8 @@ pub struct Network {
     pub(crate) system: System,
     pub(crate) emf: [Complex64; 3],
     pub(crate) source: Source,
+    /// Z_s⁻¹ at the fundamental, worked out once (`None` when stiff or singular).
+    pub(crate) source_y1: Option<[[Complex64; 3]; 3]>,
     pub(crate) neutral: NeutralPath,
     pub(crate) service_hot: Complex64,
     pub(crate) service_neutral: Complex64,
@@ -118,6 +122,7 @@ impl Network {
                     a,
                     b,
                     branch: load.branch().map(|c| c.impedance()).unwrap_or_default(),
+                    characteristic: load.characteristic(),
                 }
             })
             .collect();
@@ -125,12 +130,14 @@ impl Network {
             system,
             emf,
             source,
+            source_y1: None,
             neutral: NeutralPath::Solid,
             service_hot: service.hot.impedance(),
             service_neutral: zn,
             loads,
         };
         net.set_neutral(job.neutral());
+        net.source_y1 = net.source_y_at(1);
         net
     }
 

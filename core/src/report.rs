@@ -178,7 +178,10 @@ pub fn build(job: &Job, net: &Network, sol: &Solution) -> Report {
                 .map(|v| (v * r.current.conj()).re)
                 .unwrap_or(0.0);
             let (outcome, reason) = match v {
-                Some(v) => classify(load, v, r.state, load.is_on()),
+                Some(v) => {
+                    let (o, why) = classify(load, v, r.state, load.is_on());
+                    (o, why.to_string())
+                }
                 None => (
                     Outcome::Off,
                     "its neutral floats: nothing connects it".to_string(),

@@ -18,7 +18,7 @@ pub const MAX_ITERATIONS: usize = 200;
 
 /// Convergence: the largest change of any load's terminal voltage between iterations, as a fraction
 /// of the system's line-to-neutral voltage.
-pub const TOLERANCE: f64 = 1e-11;
+pub const TOLERANCE: f64 = 1e-9;
 
 /// Why a solve failed.
 #[derive(Clone, Debug, PartialEq)]
@@ -154,6 +154,7 @@ fn nodal(
             }
             None
         }
+        Source::Thevenin { .. } if h == 1 => Some(net.source_y1.ok_or(SolveError::Singular)?),
         Source::Thevenin { .. } => Some(net.source_y_at(h).ok_or(SolveError::Singular)?),
     };
     let touches_n = elements
@@ -225,7 +226,21 @@ fn nodal(
 /// Equivalent admittance of a load admittance `y` in series with its branch loop `zb`:
 /// y_eq = y / (1 + zb·y).
 fn with_branch(y: Complex64, zb: Complex64) -> Complex64 {
-    y / (Complex64::new(1.0, 0.0) + zb * y)
+    // Most loads have no branch conductors given; skip the division for them.
+    if zb.re == 0.0 && zb.im == 0.0 {
+        y
+    } else {
+        y / (Complex64::new(1.0, 0.0) + zb * y)
+    }
+}
+
+/// The appliance's own voltage from the voltage across its panel bars: V_t = V / (1 + Z_b·y).
+fn at_terminals(vp: Complex64, zb: Complex64, y: Complex64) -> Complex64 {
+    if zb.re == 0.0 && zb.im == 0.0 {
+        vp
+    } else {
+        vp / (Complex64::new(1.0, 0.0) + zb * y)
+    }
 }
 
 fn pair(v: &[Option<Complex64>; MAX_NODES], a: Node, b: Node) -> Option<Complex64> {
@@ -247,6 +262,18 @@ fn pair(v: &[Option<Complex64>; MAX_NODES], a: Node, b: Node) -> Option<Complex6
 /// assert!((sol.leg_current[0].norm() - 12.0).abs() < 1e-9); // 1440 W / 120 V on a stiff source
 /// ```
 pub fn solve(net: &Network) -> Result<Solution, SolveError> {
+    solve_with(net, true)
+}
+
+/// Solves the fundamental only, leaving `harmonics` empty: for the sweep, which plots voltages.
+///
+/// # Errors
+/// As [`solve`].
+pub fn solve_fundamental(net: &Network) -> Result<Solution, SolveError> {
+    solve_with(net, false)
+}
+
+fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
     let n = net.loads().len();
     let mut states = vec![State::Running; n];
     let mut y: Vec<Complex64> = net
@@ -283,7 +310,7 @@ pub fn solve(net: &Network) -> Result<Solution, SolveError> {
             let Some(limit) = p.load.low_limit_v() else {
                 continue;
             };
-            let vt = pair(&v, p.a, p.b).map(|vp| vp / (Complex64::new(1.0, 0.0) + p.branch * y[k]));
+            let vt = pair(&v, p.a, p.b).map(|vp| at_terminals(vp, p.branch, y[k]));
             if vt.is_some_and(|vt| vt.norm() < limit * (1.0 - 1e-9)) {
                 states[k] = match p.load.model() {
                     Model::Motor => State::Stalled,
@@ -294,7 +321,7 @@ pub fn solve(net: &Network) -> Result<Solution, SolveError> {
             }
         }
         if !changed {
-            return finish(net, &states, &y, v, total_iterations);
+            return finish(net, &states, &y, v, total_iterations, harmonics);
         }
     }
     Err(SolveError::NoConvergence {
@@ -347,40 +374,43 @@ fn iterate(
         .loads()
         .iter()
         .any(|p| p.load.is_on() && p.load.model().is_nonlinear());
+    let mut elements: Vec<Element> = Vec::with_capacity(y.len());
     for iteration in 1..=MAX_ITERATIONS {
-        let elements: Vec<Element> = net
-            .loads()
-            .iter()
-            .zip(y.iter())
-            .filter(|(p, _)| p.load.is_on())
-            .map(|(p, yk)| Element {
-                a: p.a.index(),
-                b: p.b.index(),
-                y: with_branch(*yk, p.branch),
-            })
-            .collect();
+        elements.clear();
+        elements.extend(
+            net.loads()
+                .iter()
+                .zip(y.iter())
+                .filter(|(p, _)| p.load.is_on())
+                .map(|(p, yk)| Element {
+                    a: p.a.index(),
+                    b: p.b.index(),
+                    y: with_branch(*yk, p.branch),
+                }),
+        );
         let v = nodal(net, 1, &elements, &[])?;
         if !nonlinear {
             return Ok((v, iteration));
         }
-        let mut change: f64 = 0.0;
+        // Work in squared magnitudes: this loop is the engine's hot path and hypot is slow.
+        let mut change_sq: f64 = 0.0;
         for (k, p) in net.loads().iter().enumerate() {
-            if !p.load.is_on() {
+            if !p.load.is_on() || !p.load.model().is_nonlinear() {
                 continue;
             }
             let Some(vp) = pair(&v, p.a, p.b) else {
                 continue;
             };
-            let vt = vp / (Complex64::new(1.0, 0.0) + p.branch * y[k]);
-            if let Some(prev) = last_vt[k] {
-                change = change.max((vt - prev).norm());
-            } else {
-                change = f64::INFINITY;
-            }
+            let vt = at_terminals(vp, p.branch, y[k]);
+            change_sq = match last_vt[k] {
+                Some(prev) => change_sq.max((vt - prev).norm_sqr()),
+                None => f64::INFINITY,
+            };
             last_vt[k] = Some(vt);
-            let target = p.load.admittance(vt.norm(), states[k]);
+            let target = p.characteristic.admittance(vt.norm_sqr().sqrt(), states[k]);
             y[k] += (target - y[k]) * step;
         }
+        let change = change_sq.sqrt();
         if change <= tol {
             return Ok((v, iteration));
         }
@@ -401,6 +431,7 @@ fn finish(
     y: &[Complex64],
     v: [Option<Complex64>; MAX_NODES],
     iterations: usize,
+    harmonics: bool,
 ) -> Result<Solution, SolveError> {
     let zero = Complex64::new(0.0, 0.0);
     let mut loads = Vec::with_capacity(y.len());
@@ -442,7 +473,9 @@ fn finish(
         harmonics_skipped: false,
         iterations,
     };
-    solve_harmonics(net, states, y, &mut sol)?;
+    if harmonics {
+        solve_harmonics(net, states, y, &mut sol)?;
+    }
     Ok(sol)
 }
 
@@ -500,24 +533,38 @@ fn solve_harmonics(
     }
     let zero = Complex64::new(0.0, 0.0);
     let mut harmonic_sq = vec![0.0; y.len()];
+    // Each load's series impedance at the fundamental and its injected current's magnitude and
+    // angle, worked out once for all orders.
+    let z1: Vec<Complex64> = y.iter().map(|yk| yk.inv()).collect();
+    let is_source: Vec<bool> = net
+        .loads()
+        .iter()
+        .zip(states)
+        .map(|(p, s)| {
+            p.load.is_on()
+                && *s == State::Running
+                && matches!(p.load.model(), Model::Electronic { .. })
+        })
+        .collect();
+    let mut elements = Vec::with_capacity(y.len());
+    let mut injections = Vec::new();
+    let mut current_of = vec![zero; y.len()];
+    let mut y_h = vec![zero; y.len()];
     for h in orders {
-        let mut elements = Vec::new();
-        let mut injections = Vec::new();
-        let mut source_of: Vec<Option<Complex64>> = vec![None; y.len()];
+        elements.clear();
+        injections.clear();
         for (k, p) in net.loads().iter().enumerate() {
             if !p.load.is_on() {
                 continue;
             }
-            let is_source =
-                states[k] == State::Running && matches!(p.load.model(), Model::Electronic { .. });
-            if is_source {
-                let frac = p
+            if is_source[k] {
+                let frac: f64 = p
                     .load
                     .harmonics()
                     .iter()
                     .filter(|(o, _)| *o == h)
                     .map(|(_, f)| f)
-                    .sum::<f64>();
+                    .sum();
                 let angle = sol.loads[k].terminal_v.map(|v| v.arg()).unwrap_or(0.0);
                 let i =
                     Complex64::from_polar(frac * sol.loads[k].current.norm(), f64::from(h) * angle);
@@ -526,13 +573,13 @@ fn solve_harmonics(
                     b: p.b.index(),
                     i,
                 });
-                source_of[k] = Some(i);
+                current_of[k] = i;
             } else {
-                let z = at_harmonic(y[k].inv(), h) + at_harmonic(p.branch, h);
+                y_h[k] = (at_harmonic(z1[k], h) + at_harmonic(p.branch, h)).inv();
                 elements.push(Element {
                     a: p.a.index(),
                     b: p.b.index(),
-                    y: z.inv(),
+                    y: y_h[k],
                 });
             }
         }
@@ -543,12 +590,10 @@ fn solve_harmonics(
             if !p.load.is_on() {
                 continue;
             }
-            let i = match source_of[k] {
-                Some(i) => i,
-                None => {
-                    let z = at_harmonic(y[k].inv(), h) + at_harmonic(p.branch, h);
-                    pair(&v, p.a, p.b).map(|vp| vp / z).unwrap_or(zero)
-                }
+            let i = if is_source[k] {
+                current_of[k]
+            } else {
+                pair(&v, p.a, p.b).map(|vp| vp * y_h[k]).unwrap_or(zero)
             };
             harmonic_sq[k] += i.norm_sqr();
             add_branch_current(&mut legs, &mut into_neutral, p.a, p.b, i);

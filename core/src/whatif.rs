@@ -4,7 +4,7 @@
 use crate::classify::{classify, Outcome};
 use crate::network::Network;
 use crate::report::{build, Report};
-use crate::solve::{solve, SolveError};
+use crate::solve::{solve, solve_fundamental, SolveError};
 use crate::validate::{Job, NeutralState};
 use serde::Serialize;
 
@@ -111,7 +111,7 @@ pub fn sweep(job: &Job, points: &[Option<f64>]) -> Result<Sweep, SolveError> {
                 earth_return_ohms: earth,
             },
         });
-        let sol = solve(&net)?;
+        let sol = solve_fundamental(&net)?;
         for ((series, r), load) in loads.iter_mut().zip(&sol.loads).zip(job.loads()) {
             let v = r.terminal_v.map(|v| v.norm());
             series.volts.push(v);
