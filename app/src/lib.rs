@@ -1,1 +1,48 @@
-pub fn start() {}
+//! Tapline's phone app: a Leptos client-side rendered front end over `tapline-core`.
+//!
+//! Layout: [`state`] (signals and the memos that call the engine), [`storage`] (the only module
+//! touching browser storage), [`edit`], [`format`] and [`plot`] (pure logic, tested natively),
+//! [`files`] (export and import), `components/` (views only) and `pages/` (one per screen).
+
+pub mod components;
+pub mod edit;
+pub mod files;
+pub mod format;
+pub mod pages;
+pub mod plot;
+pub mod state;
+pub mod storage;
+
+use leptos::prelude::*;
+use pages::{cautions::CautionsPage, job::JobPage, jobs::JobsPage};
+use state::{AppState, Screen};
+
+/// The whole app.
+#[component]
+pub fn App() -> impl IntoView {
+    let state = AppState::new();
+    provide_context(state);
+    view! {
+        <header class="top">
+            <h1 data-testid="app-title">"Tapline"</h1>
+            <button class="caution-link" data-testid="open-cautions" on:click=move |_| state.screen.set(Screen::Cautions)>"⚠ Cautions"</button>
+        </header>
+        <p class="caution-line" data-testid="caution-line">"Live equipment can kill. Verify with a meter; work by qualified persons under local code."</p>
+        <div class="banners">
+            {move || state.banners.get().into_iter().map(|b| view! { <p class="banner" role="alert" data-testid="banner">{b}</p> }).collect_view()}
+        </div>
+        <main>
+            {move || match state.screen.get() {
+                Screen::Jobs => view! { <JobsPage /> }.into_any(),
+                Screen::Job => view! { <JobPage /> }.into_any(),
+                Screen::Cautions => view! { <CautionsPage /> }.into_any(),
+            }}
+        </main>
+    }
+}
+
+/// Mounts the app on the page.
+pub fn start() {
+    console_error_panic_hook::set_once();
+    leptos::mount::mount_to_body(App);
+}

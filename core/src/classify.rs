@@ -272,9 +272,9 @@ impl std::fmt::Display for Why {
                 ),
                 Model::Lamp => write!(
                     out,
-                    "gets {v:.0} V: its {} runs so hot it keeps about {:.0} % of its life and is likely to burn out soon",
+                    "gets {v:.0} V: its {} runs so hot it keeps {} of its life and is likely to burn out soon",
                     LAMP.part,
-                    f.powf(LAMP_LIFE_EXPONENT) * 100.0
+                    life_left(f)
                 ),
                 _ => write!(
                     out,
@@ -285,11 +285,7 @@ impl std::fmt::Display for Why {
             },
             Why::Over { model, v, f } => match model {
                 Model::Resistive => write!(out, "gets {v:.0} V: runs at {:.0} % power and overheats", f * f * 100.0),
-                Model::Lamp => write!(
-                    out,
-                    "gets {v:.0} V: burns brighter with about {:.0} % of its normal life",
-                    f.powf(LAMP_LIFE_EXPONENT) * 100.0
-                ),
+                Model::Lamp => write!(out, "gets {v:.0} V: burns brighter with {} of its normal life", life_left(f)),
                 _ => write!(
                     out,
                     "gets {v:.0} V ({:.0} %): over-voltage stresses its {}",
@@ -308,6 +304,16 @@ impl std::fmt::Display for Why {
                 _ => write!(out, "gets {v:.0} V ({:.0} %): under-voltage", f * 100.0),
             },
         }
+    }
+}
+
+/// A lamp's remaining life at voltage fraction `f`, as words: life ∝ V^−13.
+fn life_left(f: f64) -> String {
+    let pct = f.powf(LAMP_LIFE_EXPONENT) * 100.0;
+    if pct < 1.0 {
+        "less than 1 %".to_string()
+    } else {
+        format!("about {pct:.0} %")
     }
 }
 
@@ -377,8 +383,13 @@ pub fn classify(load: &Load, volts: f64, state: State, on: bool) -> (Outcome, Wh
                 }
                 return (Outcome::OverVoltage, Why::Over { model, v, f });
             }
-            let motor_ok = model == Model::Motor && f >= 1.0 - MOTOR_TOLERANCE;
-            if in_b || motor_ok {
+            // A motor below NEMA's −10 % runs hot at rated load even inside Range B.
+            let ok = if model == Model::Motor {
+                f >= 1.0 - MOTOR_TOLERANCE
+            } else {
+                in_b
+            };
+            if ok {
                 return (Outcome::Marginal, Why::LowRangeB { v, f });
             }
             (Outcome::UnderVoltage, Why::Under { model, v, f })

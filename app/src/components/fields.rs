@@ -1,0 +1,78 @@
+//! Form fields. Number fields are text inputs with a decimal keypad, so whatever was typed can be
+//! kept and reported by the engine's validation instead of being silently dropped by the browser.
+
+use leptos::prelude::*;
+
+/// A labelled number input with the validation message for its JSON path.
+#[component]
+pub fn NumberField(
+    label: String,
+    /// The value when the field is drawn; the field is not re-filled while the user types.
+    initial: String,
+    #[prop(into)] problem: Signal<Option<String>>,
+    on_text: impl Fn(String) + 'static,
+    #[prop(into)] testid: String,
+    #[prop(optional, into)] unit: String,
+) -> impl IntoView {
+    view! {
+        <label class="field" class:bad=move || problem.get().is_some()>
+            <span class="field-label">{label}</span>
+            <span class="field-row">
+                <input
+                    type="text"
+                    inputmode="decimal"
+                    autocomplete="off"
+                    prop:value=initial
+                    data-testid=testid
+                    on:input=move |ev| on_text(event_target_value(&ev))
+                />
+                <span class="unit">{unit}</span>
+            </span>
+            <span class="field-error" role="alert">{move || problem.get().unwrap_or_default()}</span>
+        </label>
+    }
+}
+
+/// A labelled text input.
+#[component]
+pub fn TextField(
+    label: String,
+    initial: String,
+    #[prop(into)] problem: Signal<Option<String>>,
+    on_text: impl Fn(String) + 'static,
+    #[prop(into)] testid: String,
+) -> impl IntoView {
+    view! {
+        <label class="field" class:bad=move || problem.get().is_some()>
+            <span class="field-label">{label}</span>
+            <input type="text" prop:value=initial data-testid=testid on:input=move |ev| on_text(event_target_value(&ev)) />
+            <span class="field-error" role="alert">{move || problem.get().unwrap_or_default()}</span>
+        </label>
+    }
+}
+
+/// A labelled select of (value, label) options.
+#[component]
+pub fn SelectField(
+    label: String,
+    options: Vec<(String, String)>,
+    selected: String,
+    on_pick: impl Fn(String) + 'static,
+    #[prop(into)] testid: String,
+) -> impl IntoView {
+    let options = options
+        .into_iter()
+        .map(|(value, text)| {
+            let is = value == selected;
+            view! { <option value=value selected=is>{text}</option> }
+        })
+        .collect_view();
+    view! {
+        <label class="field">
+            <span class="field-label">{label}</span>
+            <select data-testid=testid on:change=move |ev| on_pick(event_target_value(&ev))>
+                {options}
+            </select>
+        </label>
+    }
+}

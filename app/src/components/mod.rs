@@ -1,0 +1,9 @@
+//! Views only: props in, callbacks out. No arithmetic on electrical values happens here.
+
+mod fields;
+mod plot;
+mod result;
+
+pub use fields::{NumberField, SelectField, TextField};
+pub use plot::SweepPlot;
+pub use result::{CautionList, OutcomeBadge};

@@ -1,0 +1,705 @@
+//! Pure editing of a job file: what each form control does to the job, with no browser and no
+//! reactive code, so it is tested natively. Unit conversion lives here too; components only call
+//! these functions.
+
+use serde_json::Value;
+use tapline_core::conductors::FEET_PER_METRE;
+use tapline_core::job::{
+    ConductorFile, JobFile, LoadFile, NeutralFile, Raw, SystemFile, TransformerFile, JOB_VERSION,
+};
+use tapline_core::library::{Appliance, Hookup};
+use tapline_core::validate::Problem;
+
+/// Reads a number typed by a user. Empty text is "absent"; a comma decimal separator is accepted;
+/// anything else that is not a number is kept as typed so validation can name the field.
+pub fn number_from_text(text: &str) -> Raw<f64> {
+    let t = text.trim();
+    if t.is_empty() {
+        return Raw::Absent;
+    }
+    match t.replace(',', ".").parse::<f64>() {
+        Ok(v) if v.is_finite() => Raw::Given(v),
+        _ => Raw::Invalid(Value::String(t.to_string())),
+    }
+}
+
+/// The text a number field shows for a stored value.
+pub fn text_of_number(raw: &Raw<f64>) -> String {
+    match raw {
+        Raw::Absent => String::new(),
+        Raw::Given(v) => trim_float(*v),
+        Raw::Invalid(Value::String(s)) => s.clone(),
+        Raw::Invalid(v) => v.to_string(),
+    }
+}
+
+/// A float as short text: no trailing zeros, at most 6 decimals.
+pub fn trim_float(v: f64) -> String {
+    let s = format!("{v:.6}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    if s == "-0" {
+        "0".to_string()
+    } else {
+        s.to_string()
+    }
+}
+
+/// The text of an optional string field.
+pub fn text_of(raw: &Raw<String>) -> String {
+    match raw {
+        Raw::Given(s) => s.clone(),
+        Raw::Invalid(v) => v.to_string(),
+        Raw::Absent => String::new(),
+    }
+}
+
+/// Length units for conductor runs.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Units {
+    Feet,
+    Metres,
+}
+
+impl Units {
+    pub fn parse(s: &str) -> Units {
+        if s == "m" {
+            Units::Metres
+        } else {
+            Units::Feet
+        }
+    }
+    pub fn code(self) -> &'static str {
+        match self {
+            Units::Feet => "ft",
+            Units::Metres => "m",
+        }
+    }
+}
+
+/// A fresh job: split-phase 120/240 V, neutral intact, no loads.
+pub fn new_job(name: &str) -> JobFile {
+    JobFile {
+        version: Raw::Given(JOB_VERSION),
+        name: Raw::Given(name.to_string()),
+        system: Raw::Given(SystemFile {
+            kind: Raw::Given("split-phase".to_string()),
+            volts_to_neutral: Raw::Given(120.0),
+            frequency_hz: Raw::Given(60.0),
+            phases: Raw::Absent,
+        }),
+        neutral: Raw::Given(NeutralFile {
+            state: Raw::Given("intact".to_string()),
+            ..NeutralFile::default()
+        }),
+        loads: Raw::Given(Vec::new()),
+        ..JobFile::default()
+    }
+}
+
+/// A copy of a job under a new name.
+pub fn duplicate(job: &JobFile) -> JobFile {
+    let mut copy = job.clone();
+    copy.name = Raw::Given(format!("{} (copy)", text_of(&job.name)));
+    copy
+}
+
+/// The systems offered in the service form.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Preset {
+    Split120240,
+    TwoOfWye208,
+    Wye208,
+    Wye480,
+    Wye400,
+    CustomSplit,
+    CustomWye,
+}
+
+impl Preset {
+    pub const ALL: [Preset; 7] = [
+        Preset::Split120240,
+        Preset::TwoOfWye208,
+        Preset::Wye208,
+        Preset::Wye480,
+        Preset::Wye400,
+        Preset::CustomSplit,
+        Preset::CustomWye,
+    ];
+
+    pub fn code(self) -> &'static str {
+        match self {
+            Preset::Split120240 => "split",
+            Preset::TwoOfWye208 => "wye2-208",
+            Preset::Wye208 => "wye-208",
+            Preset::Wye480 => "wye-480",
+            Preset::Wye400 => "wye-400",
+            Preset::CustomSplit => "custom-split",
+            Preset::CustomWye => "custom-wye",
+        }
+    }
+
+    pub fn label(self) -> &'static str {
+        match self {
+            Preset::Split120240 => "120/240 V split-phase",
+            Preset::TwoOfWye208 => "120/208 V, two phases of a wye",
+            Preset::Wye208 => "120/208 V three-phase wye",
+            Preset::Wye480 => "277/480 V three-phase wye",
+            Preset::Wye400 => "230/400 V three-phase wye (50 Hz)",
+            Preset::CustomSplit => "Other split-phase voltage",
+            Preset::CustomWye => "Other wye voltage",
+        }
+    }
+
+    pub fn from_code(code: &str) -> Option<Preset> {
+        Preset::ALL.into_iter().find(|p| p.code() == code)
+    }
+
+    /// (kind, phases, volts to neutral, hertz); `None` volts for the custom entries.
+    fn spec(self) -> (&'static str, Option<u32>, Option<f64>, f64) {
+        match self {
+            Preset::Split120240 => ("split-phase", None, Some(120.0), 60.0),
+            Preset::TwoOfWye208 => ("wye", Some(2), Some(120.0), 60.0),
+            Preset::Wye208 => ("wye", Some(3), Some(120.0), 60.0),
+            Preset::Wye480 => ("wye", Some(3), Some(277.0), 60.0),
+            Preset::Wye400 => ("wye", Some(3), Some(230.0), 50.0),
+            Preset::CustomSplit => ("split-phase", None, None, 60.0),
+            Preset::CustomWye => ("wye", Some(3), None, 60.0),
+        }
+    }
+}
+
+/// The preset that describes a job's system (custom when none matches exactly).
+pub fn preset_of(job: &JobFile) -> Preset {
+    let Some(sys) = job.system.given() else {
+        return Preset::Split120240;
+    };
+    let kind = sys
+        .kind
+        .given()
+        .map(String::as_str)
+        .unwrap_or("split-phase");
+    let phases = sys.phases.given().copied().unwrap_or(3);
+    let v = sys.volts_to_neutral.given().copied();
+    let f = sys.frequency_hz.given().copied().unwrap_or(60.0);
+    for p in Preset::ALL {
+        let (k, ph, pv, pf) = p.spec();
+        if pv.is_some()
+            && k == kind
+            && (k == "split-phase" || ph == Some(phases))
+            && pv == v
+            && pf == f
+        {
+            return p;
+        }
+    }
+    if kind == "wye" {
+        Preset::CustomWye
+    } else {
+        Preset::CustomSplit
+    }
+}
+
+/// Applies a preset; the custom entries keep the voltage already typed.
+pub fn set_preset(job: &mut JobFile, preset: Preset) {
+    let (kind, phases, volts, hz) = preset.spec();
+    let old = job.system.given().cloned().unwrap_or_default();
+    job.system = Raw::Given(SystemFile {
+        kind: Raw::Given(kind.to_string()),
+        volts_to_neutral: volts.map(Raw::Given).unwrap_or(old.volts_to_neutral),
+        frequency_hz: Raw::Given(hz),
+        phases: phases.map(Raw::Given).unwrap_or_default(),
+    });
+    // Loads on a leg the new system lacks are moved to L1 so the job stays valid.
+    let legs = legs_of(job);
+    if let Raw::Given(loads) = &mut job.loads {
+        for l in loads.iter_mut() {
+            if let Raw::Given(load) = l {
+                let c = text_of(&load.connect);
+                if !connect_options_for(&legs).contains(&c.as_str()) {
+                    load.connect =
+                        Raw::Given(if c.contains('N') { "L1-N" } else { "L1-L2" }.to_string());
+                }
+            }
+        }
+    }
+}
+
+/// Sets the custom line-to-neutral voltage.
+pub fn set_volts(job: &mut JobFile, text: &str) {
+    let mut sys = job.system.given().cloned().unwrap_or_default();
+    sys.volts_to_neutral = number_from_text(text);
+    job.system = Raw::Given(sys);
+}
+
+/// The hot legs of a job's system.
+pub fn legs_of(job: &JobFile) -> Vec<&'static str> {
+    let sys = job.system.given();
+    let wye = sys.and_then(|s| s.kind.given()).is_some_and(|k| k == "wye");
+    let phases = sys.and_then(|s| s.phases.given()).copied().unwrap_or(3);
+    if wye && phases == 3 {
+        vec!["L1", "L2", "L3"]
+    } else {
+        vec!["L1", "L2"]
+    }
+}
+
+fn connect_options_for(legs: &[&str]) -> Vec<&'static str> {
+    if legs.len() == 3 {
+        vec!["L1-N", "L2-N", "L3-N", "L1-L2", "L2-L3", "L3-L1"]
+    } else {
+        vec!["L1-N", "L2-N", "L1-L2"]
+    }
+}
+
+/// Where a load may be connected on this job's system.
+pub fn connect_options(job: &JobFile) -> Vec<&'static str> {
+    connect_options_for(&legs_of(job))
+}
+
+/// Turns the transformer on (with typical pole-mount values to edit) or off.
+pub fn set_transformer(job: &mut JobFile, on: bool) {
+    job.transformer = if on {
+        Raw::Given(TransformerFile {
+            kva: Raw::Given(25.0),
+            primary_v: Raw::Given(7200.0),
+            impedance_pct: Raw::Given(2.0),
+            x_over_r: Raw::Given(1.5),
+            ..TransformerFile::default()
+        })
+    } else {
+        Raw::Absent
+    };
+}
+
+/// A transformer field by name: `kva`, `primary_v`, `impedance_pct`, `x_over_r`.
+pub fn set_transformer_field(job: &mut JobFile, field: &str, text: &str) {
+    let mut t = job.transformer.given().cloned().unwrap_or_default();
+    let v = number_from_text(text);
+    match field {
+        "kva" => t.kva = v,
+        "primary_v" => t.primary_v = v,
+        "impedance_pct" => t.impedance_pct = v,
+        "x_over_r" => t.x_over_r = v,
+        "tap_pct" => t.tap_pct = v,
+        _ => return,
+    }
+    job.transformer = Raw::Given(t);
+}
+
+/// Reads a transformer field as text.
+pub fn transformer_text(job: &JobFile, field: &str) -> String {
+    let Some(t) = job.transformer.given() else {
+        return String::new();
+    };
+    text_of_number(match field {
+        "kva" => &t.kva,
+        "primary_v" => &t.primary_v,
+        "impedance_pct" => &t.impedance_pct,
+        "x_over_r" => &t.x_over_r,
+        _ => &t.tap_pct,
+    })
+}
+
+/// Which service conductor: the hots or the neutral.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Run {
+    Hot,
+    Neutral,
+}
+
+impl Run {
+    pub fn key(self) -> &'static str {
+        match self {
+            Run::Hot => "hot",
+            Run::Neutral => "neutral",
+        }
+    }
+}
+
+fn conductor(job: &JobFile, run: Run) -> Option<&ConductorFile> {
+    let s = job.service.given()?;
+    match run {
+        Run::Hot => s.hot.given(),
+        Run::Neutral => s.neutral.given(),
+    }
+}
+
+fn conductor_mut(job: &mut JobFile, run: Run) -> &mut ConductorFile {
+    if job.service.given().is_none() {
+        job.service = Raw::Given(Default::default());
+    }
+    let Raw::Given(s) = &mut job.service else {
+        unreachable!("set just above")
+    };
+    let slot = match run {
+        Run::Hot => &mut s.hot,
+        Run::Neutral => &mut s.neutral,
+    };
+    if slot.given().is_none() {
+        *slot = Raw::Given(ConductorFile {
+            material: Raw::Given("al".to_string()),
+            size: Raw::Given(Value::String(
+                if run == Run::Hot { "4/0" } else { "2/0" }.to_string(),
+            )),
+            length_m: Raw::Given(30.0),
+            ..ConductorFile::default()
+        });
+    }
+    let Raw::Given(c) = slot else {
+        unreachable!("set just above")
+    };
+    c
+}
+
+/// True when the job gives this service conductor.
+pub fn has_conductor(job: &JobFile, run: Run) -> bool {
+    conductor(job, run).is_some()
+}
+
+/// Adds (with typical aluminum service values) or removes a service conductor.
+pub fn set_conductor_present(job: &mut JobFile, run: Run, on: bool) {
+    if on {
+        conductor_mut(job, run);
+    } else if let Raw::Given(s) = &mut job.service {
+        match run {
+            Run::Hot => s.hot = Raw::Absent,
+            Run::Neutral => s.neutral = Raw::Absent,
+        }
+    }
+}
+
+/// Sets a conductor's material or size (text fields).
+pub fn set_conductor_text(job: &mut JobFile, run: Run, field: &str, text: &str) {
+    let c = conductor_mut(job, run);
+    match field {
+        "material" => c.material = Raw::Given(text.to_string()),
+        "size" => c.size = Raw::Given(Value::String(text.to_string())),
+        _ => {}
+    }
+}
+
+/// Reads a conductor's material or size.
+pub fn conductor_text(job: &JobFile, run: Run, field: &str) -> String {
+    let Some(c) = conductor(job, run) else {
+        return String::new();
+    };
+    match field {
+        "material" => text_of(&c.material),
+        _ => match &c.size {
+            Raw::Given(Value::String(s)) => s.clone(),
+            Raw::Given(v) | Raw::Invalid(v) => v.to_string(),
+            Raw::Absent => String::new(),
+        },
+    }
+}
+
+/// Sets a conductor's one-way length in the chosen units; the job keeps one length field.
+pub fn set_length(job: &mut JobFile, run: Run, text: &str, units: Units) {
+    let c = conductor_mut(job, run);
+    let v = number_from_text(text);
+    match units {
+        Units::Feet => {
+            c.length_ft = v;
+            c.length_m = Raw::Absent;
+        }
+        Units::Metres => {
+            c.length_m = v;
+            c.length_ft = Raw::Absent;
+        }
+    }
+}
+
+/// A conductor's length as text in the chosen units (converted when stored in the other unit).
+pub fn length_text(job: &JobFile, run: Run, units: Units) -> String {
+    let Some(c) = conductor(job, run) else {
+        return String::new();
+    };
+    match (units, &c.length_ft, &c.length_m) {
+        (Units::Feet, Raw::Absent, Raw::Given(m)) => {
+            trim_float((m * FEET_PER_METRE * 10.0).round() / 10.0)
+        }
+        (Units::Metres, Raw::Given(ft), Raw::Absent) => {
+            trim_float((ft / FEET_PER_METRE * 10.0).round() / 10.0)
+        }
+        (Units::Feet, ft, _) if !ft.is_absent() => text_of_number(ft),
+        (_, _, m) => text_of_number(m),
+    }
+}
+
+/// The JSON path of a conductor's length field in the chosen units.
+pub fn length_path(run: Run, units: Units) -> String {
+    format!("service.{}.length_{}", run.key(), units.code())
+}
+
+/// The neutral's state, ohms and earth-return text.
+pub fn neutral_of(job: &JobFile) -> (String, String, String) {
+    let n = job.neutral.given().cloned().unwrap_or_default();
+    let state = n
+        .state
+        .given()
+        .cloned()
+        .unwrap_or_else(|| "intact".to_string());
+    (
+        state,
+        text_of_number(&n.ohms),
+        text_of_number(&n.earth_return_ohms),
+    )
+}
+
+/// Sets the neutral's state (`intact`, `loose`, `open`), keeping the numbers typed for the others.
+pub fn set_neutral_state(job: &mut JobFile, state: &str) {
+    let mut n = job.neutral.given().cloned().unwrap_or_default();
+    n.state = Raw::Given(state.to_string());
+    if state == "loose" && n.ohms.is_absent() {
+        n.ohms = Raw::Given(1.0);
+    }
+    job.neutral = Raw::Given(n);
+}
+
+/// Sets the loose-neutral resistance or the earth-return resistance (`ohms`, `earth_return_ohms`).
+pub fn set_neutral_number(job: &mut JobFile, field: &str, text: &str) {
+    let mut n = job.neutral.given().cloned().unwrap_or_default();
+    match field {
+        "ohms" => n.ohms = number_from_text(text),
+        _ => n.earth_return_ohms = number_from_text(text),
+    }
+    job.neutral = Raw::Given(n);
+}
+
+fn loads_mut(job: &mut JobFile) -> &mut Vec<Raw<LoadFile>> {
+    if job.loads.given().is_none() {
+        job.loads = Raw::Given(Vec::new());
+    }
+    let Raw::Given(l) = &mut job.loads else {
+        unreachable!("set just above")
+    };
+    l
+}
+
+/// The loads as given (unreadable entries show as defaults).
+pub fn loads(job: &JobFile) -> Vec<LoadFile> {
+    job.loads
+        .given()
+        .map(|l| {
+            l.iter()
+                .map(|r| r.given().cloned().unwrap_or_default())
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+/// Adds a library appliance on `connect`, numbering its name if the job has one already.
+pub fn add_appliance(job: &mut JobFile, appliance: &Appliance, connect: &str) {
+    let existing = loads(job)
+        .iter()
+        .filter(|l| text_of(&l.name).starts_with(appliance.name))
+        .count();
+    let name = if existing == 0 {
+        appliance.name.to_string()
+    } else {
+        format!("{} {}", appliance.name, existing + 1)
+    };
+    let connect = default_connect(job, appliance, connect);
+    let mut load = appliance.to_load(&name, &connect);
+    // Rate 240 V appliances at the system's line-to-line voltage class they are used on.
+    if appliance.hookup == Hookup::Across {
+        load.rated_v = Raw::Absent;
+    }
+    loads_mut(job).push(Raw::Given(load));
+}
+
+fn default_connect(job: &JobFile, appliance: &Appliance, wanted: &str) -> String {
+    let options = connect_options(job);
+    let across = appliance.hookup == Hookup::Across;
+    if options.contains(&wanted) && wanted.contains('N') != across {
+        return wanted.to_string();
+    }
+    if across { "L1-L2" } else { "L1-N" }.to_string()
+}
+
+/// Adds a custom resistive load.
+pub fn add_custom(job: &mut JobFile) {
+    let n = loads(job).len() + 1;
+    loads_mut(job).push(Raw::Given(LoadFile {
+        name: Raw::Given(format!("Load {n}")),
+        connect: Raw::Given("L1-N".to_string()),
+        model: Raw::Given("resistive".to_string()),
+        watts: Raw::Given(1000.0),
+        ..LoadFile::default()
+    }));
+}
+
+/// Removes load `i`.
+pub fn remove_load(job: &mut JobFile, i: usize) {
+    let l = loads_mut(job);
+    if i < l.len() {
+        l.remove(i);
+    }
+}
+
+/// Edits one field of load `i`: `name`, `connect`, `model` (text), `watts`, `power_factor`,
+/// `rated_v` (numbers) or `on` ("true"/"false").
+pub fn set_load_field(job: &mut JobFile, i: usize, field: &str, text: &str) {
+    let Some(Raw::Given(load)) = loads_mut(job).get_mut(i) else {
+        return;
+    };
+    match field {
+        "name" => load.name = Raw::Given(text.to_string()),
+        "connect" => load.connect = Raw::Given(text.to_string()),
+        "model" => {
+            load.model = Raw::Given(text.to_string());
+            if text == "resistive" || text == "lamp" {
+                load.power_factor = Raw::Absent;
+            }
+            if text != "electronic" {
+                load.input_min_v = Raw::Absent;
+                load.input_max_v = Raw::Absent;
+                load.harmonics = Raw::Absent;
+            }
+        }
+        "watts" => load.watts = number_from_text(text),
+        "power_factor" => load.power_factor = number_from_text(text),
+        "rated_v" => load.rated_v = number_from_text(text),
+        "on" => load.on = Raw::Given(text == "true"),
+        _ => {}
+    }
+}
+
+/// The group a load is listed under: its leg (`L1`) or its pair of legs (`L1-L2`).
+pub fn group_of(load: &LoadFile) -> String {
+    let c = text_of(&load.connect);
+    c.strip_suffix("-N").map(str::to_string).unwrap_or(c)
+}
+
+/// Rated watts of the loads switched on, per group, in the order the groups first appear.
+pub fn watts_by_group(job: &JobFile) -> Vec<(String, f64)> {
+    let mut out: Vec<(String, f64)> = Vec::new();
+    for l in loads(job) {
+        if l.on.given() == Some(&false) {
+            continue;
+        }
+        let g = group_of(&l);
+        let w = l.watts.given().copied().unwrap_or(0.0);
+        match out.iter_mut().find(|(k, _)| *k == g) {
+            Some((_, t)) => *t += w,
+            None => out.push((g, w)),
+        }
+    }
+    out.sort_by(|a, b| a.0.cmp(&b.0));
+    out
+}
+
+/// The message for a field, if validation found a problem at exactly that path.
+pub fn problem_at(problems: &[Problem], path: &str) -> Option<String> {
+    problems
+        .iter()
+        .find(|p| p.path == path)
+        .map(|p| p.message.clone())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use tapline_core::validate::validate;
+
+    #[test]
+    fn numbers_typed_by_hand() {
+        assert_eq!(number_from_text(" 12.5 "), Raw::Given(12.5));
+        assert_eq!(number_from_text("12,5"), Raw::Given(12.5));
+        assert_eq!(number_from_text(""), Raw::Absent);
+        assert_eq!(
+            number_from_text("abc"),
+            Raw::Invalid(Value::String("abc".into()))
+        );
+        assert_eq!(text_of_number(&Raw::Given(1500.0)), "1500");
+        assert_eq!(text_of_number(&Raw::Given(0.25)), "0.25");
+    }
+
+    #[test]
+    fn a_new_job_is_valid_and_loads_added_from_the_library_validate() {
+        let mut job = new_job("Test");
+        assert!(validate(&job).is_ok());
+        for a in tapline_core::library::APPLIANCES {
+            add_appliance(&mut job, a, "L2-N");
+        }
+        add_custom(&mut job);
+        assert!(validate(&job).is_ok(), "{:?}", validate(&job).err());
+        let ls = loads(&job);
+        assert_eq!(text_of(&ls[0].connect), "L2-N");
+        let heater = ls
+            .iter()
+            .find(|l| text_of(&l.name).starts_with("Water heater"))
+            .unwrap();
+        assert_eq!(text_of(&heater.connect), "L1-L2");
+    }
+
+    #[test]
+    fn a_bad_field_is_reported_at_its_path_and_fixed_by_retyping() {
+        let mut job = new_job("Test");
+        add_custom(&mut job);
+        set_load_field(&mut job, 0, "watts", "lots");
+        let problems = validate(&job).unwrap_err();
+        assert!(problem_at(&problems, "loads[0].watts").is_some());
+        set_load_field(&mut job, 0, "watts", "1500");
+        assert!(validate(&job).is_ok());
+    }
+
+    #[test]
+    fn presets_round_trip_and_move_loads_off_missing_legs() {
+        let mut job = new_job("Test");
+        for p in Preset::ALL
+            .into_iter()
+            .filter(|p| !matches!(p, Preset::CustomSplit | Preset::CustomWye))
+        {
+            set_preset(&mut job, p);
+            assert_eq!(preset_of(&job), p);
+        }
+        set_preset(&mut job, Preset::Wye208);
+        add_custom(&mut job);
+        set_load_field(&mut job, 0, "connect", "L3-N");
+        set_preset(&mut job, Preset::Split120240);
+        assert_eq!(text_of(&loads(&job)[0].connect), "L1-N");
+        assert!(validate(&job).is_ok());
+    }
+
+    #[test]
+    fn lengths_follow_the_units_setting() {
+        let mut job = new_job("Test");
+        set_conductor_present(&mut job, Run::Hot, true);
+        assert_eq!(length_text(&job, Run::Hot, Units::Metres), "30");
+        assert_eq!(length_text(&job, Run::Hot, Units::Feet), "98.4");
+        set_length(&mut job, Run::Hot, "100", Units::Feet);
+        assert_eq!(length_text(&job, Run::Hot, Units::Feet), "100");
+        assert_eq!(length_text(&job, Run::Hot, Units::Metres), "30.5");
+        assert!(validate(&job).is_ok());
+        set_length(&mut job, Run::Hot, "-4", Units::Feet);
+        let problems = validate(&job).unwrap_err();
+        assert!(problem_at(&problems, &length_path(Run::Hot, Units::Feet)).is_some());
+    }
+
+    #[test]
+    fn totals_by_leg_skip_loads_switched_off() {
+        let mut job = new_job("Test");
+        add_custom(&mut job);
+        add_custom(&mut job);
+        set_load_field(&mut job, 1, "connect", "L2-N");
+        add_custom(&mut job);
+        set_load_field(&mut job, 2, "on", "false");
+        assert_eq!(
+            watts_by_group(&job),
+            vec![("L1".to_string(), 1000.0), ("L2".to_string(), 1000.0)]
+        );
+    }
+
+    #[test]
+    fn neutral_states() {
+        let mut job = new_job("Test");
+        set_neutral_state(&mut job, "loose");
+        assert_eq!(neutral_of(&job).1, "1");
+        set_neutral_number(&mut job, "ohms", "");
+        assert!(validate(&job).is_err());
+        set_neutral_state(&mut job, "open");
+        set_neutral_number(&mut job, "earth_return_ohms", "25");
+        assert!(validate(&job).is_ok());
+    }
+}

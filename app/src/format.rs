@@ -1,0 +1,108 @@
+//! Text for numbers and results. Formatting only: every value comes from the engine's report.
+
+use tapline_core::report::Report;
+
+/// Volts with one decimal, or a dash when undefined.
+pub fn volts(v: Option<f64>) -> String {
+    v.map(|v| format!("{v:.1} V"))
+        .unwrap_or_else(|| "—".to_string())
+}
+
+/// Amperes with one decimal.
+pub fn amps(a: f64) -> String {
+    format!("{a:.1} A")
+}
+
+/// A percentage with no decimals, or a dash.
+pub fn pct(p: Option<f64>) -> String {
+    p.map(|p| format!("{p:.0} %"))
+        .unwrap_or_else(|| "—".to_string())
+}
+
+/// A plain number with a fixed number of decimals.
+pub fn fixed(v: f64, decimals: usize) -> String {
+    format!("{v:.decimals$}")
+}
+
+/// The one-line status shown for a job in the list: the neutral current now, and which appliance
+/// would get the highest voltage if the neutral opened, with that voltage.
+pub fn status_line(now: &Report, if_open: Option<&Report>) -> String {
+    let mut s = format!("neutral {:.0} A", now.neutral_current_a);
+    if let Some(open) = if_open {
+        let worst = open
+            .loads
+            .iter()
+            .filter(|l| l.on)
+            .filter_map(|l| Some((l, l.percent_of_rated?)))
+            .max_by(|a, b| a.1.total_cmp(&b.1));
+        if let Some((l, p)) = worst {
+            if p > 110.0 {
+                s.push_str(&format!(
+                    " · if it opens: {} gets {:.0} V",
+                    l.name,
+                    l.voltage_v.unwrap_or(0.0)
+                ));
+            } else {
+                s.push_str(" · if it opens: no appliance over 110 %");
+            }
+        }
+    }
+    s
+}
+
+/// A moment as `YYYY-MM-DD HH:MM` in local time, from milliseconds since 1970 (UTC) and the
+/// browser's offset in minutes (UTC minus local, as JavaScript's `getTimezoneOffset` gives it).
+pub fn when(ms: f64, offset_minutes: f64) -> String {
+    let local_min = (ms / 60_000.0).floor() as i64 - offset_minutes as i64;
+    let days = local_min.div_euclid(1440);
+    let min_of_day = local_min.rem_euclid(1440);
+    let (y, m, d) = civil_from_days(days);
+    format!(
+        "{y:04}-{m:02}-{d:02} {:02}:{:02}",
+        min_of_day / 60,
+        min_of_day % 60
+    )
+}
+
+/// Days since 1970-01-01 to a proleptic Gregorian date (H. Hinnant's civil-from-days algorithm).
+fn civil_from_days(z: i64) -> (i64, u32, u32) {
+    let z = z + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z.rem_euclid(146_097);
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = (doy - (153 * mp + 2) / 5 + 1) as u32;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 } as u32;
+    (yoe + era * 400 + i64::from(m <= 2), m, d)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers() {
+        assert_eq!(volts(Some(118.44)), "118.4 V");
+        assert_eq!(volts(None), "—");
+        assert_eq!(amps(9.96), "10.0 A");
+        assert_eq!(pct(Some(167.6)), "168 %");
+    }
+
+    #[test]
+    fn dates_in_local_time() {
+        // 2026-12-01 17:31 UTC is 1 796 146 260 000 ms; five hours west of UTC it is 12:31.
+        assert_eq!(when(1_796_146_260_000.0, 0.0), "2026-12-01 17:31");
+        assert_eq!(when(1_796_146_260_000.0, 300.0), "2026-12-01 12:31");
+        assert_eq!(when(0.0, 0.0), "1970-01-01 00:00");
+    }
+
+    #[test]
+    fn status_names_the_appliance_that_suffers_most_when_the_neutral_opens() {
+        let (_, job) = tapline_core::load_job(tapline_core::demo::DEMO_JOB).unwrap();
+        let w = tapline_core::whatif::what_if(&job).unwrap();
+        let line = status_line(&w.intact, Some(&w.open));
+        assert!(line.starts_with("neutral "), "{line}");
+        assert!(line.contains("if it opens: "), "{line}");
+    }
+}

@@ -1,0 +1,50 @@
+//! One job: its tabs.
+
+use super::{loads::LoadsTab, results::ResultsTab, service::ServiceTab, whatif::WhatIfTab};
+use crate::edit;
+use crate::files;
+use crate::state::{AppState, Screen, Tab};
+use leptos::prelude::*;
+use tapline_core::job::job_to_json;
+
+#[component]
+pub fn JobPage() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let tab_button = move |tab: Tab, label: &'static str, testid: &'static str| {
+        view! {
+            <button class="tab" class:active=move || state.tab.get() == tab data-testid=testid on:click=move |_| state.tab.set(tab)>{label}</button>
+        }
+    };
+    let export = move |_| {
+        let job = state.draft.get_untracked();
+        let name = files::file_name(&edit::text_of(&job.name));
+        if let Err(e) = files::download(&name, &job_to_json(&job)) {
+            state.banner(e);
+        }
+    };
+    view! {
+        <section class="page" data-testid="job-page">
+            <div class="job-head">
+                <button data-testid="back-to-jobs" on:click=move |_| state.screen.set(Screen::Jobs)>"‹ Jobs"</button>
+                <h2 data-testid="job-title">{move || state.draft.with(|d| edit::text_of(&d.name))}</h2>
+                <button data-testid="export-open-job" on:click=export>"Export"</button>
+            </div>
+            <nav class="tabs">
+                {tab_button(Tab::Service, "Service", "tab-service")}
+                {tab_button(Tab::Loads, "Loads", "tab-loads")}
+                {tab_button(Tab::Results, "Results", "tab-results")}
+                {tab_button(Tab::WhatIf, "What-if", "tab-whatif")}
+            </nav>
+            {move || {
+                // Re-drawn when the tab or the job's structure changes, so fields start from the job.
+                state.structure.track();
+                match state.tab.get() {
+                    Tab::Service => view! { <ServiceTab /> }.into_any(),
+                    Tab::Loads => view! { <LoadsTab /> }.into_any(),
+                    Tab::Results => view! { <ResultsTab /> }.into_any(),
+                    Tab::WhatIf => view! { <WhatIfTab /> }.into_any(),
+                }
+            }}
+        </section>
+    }
+}

@@ -1,0 +1,137 @@
+//! Loads: add from the library or custom, grouped by leg with per-leg totals, on/off per load.
+
+use crate::components::{NumberField, SelectField, TextField};
+use crate::edit;
+use crate::state::AppState;
+use leptos::prelude::*;
+use tapline_core::library;
+
+const MODELS: [(&str, &str); 5] = [
+    ("resistive", "Resistive (heater)"),
+    ("impedance", "Impedance with power factor"),
+    ("lamp", "Incandescent lamp"),
+    ("motor", "Motor"),
+    ("electronic", "Electronic supply"),
+];
+
+#[component]
+pub fn LoadsTab() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let query = RwSignal::new(String::new());
+    let target = RwSignal::new("L1-N".to_string());
+    let connects: Vec<(String, String)> = state
+        .draft
+        .with_untracked(edit::connect_options)
+        .into_iter()
+        .map(|c| (c.to_string(), c.to_string()))
+        .collect();
+    let library_rows = move || {
+        library::search(&query.get())
+            .into_iter()
+            .map(|a| {
+                let label = format!("{} · {} W · {} V", a.name, a.watts, a.rated_v);
+                view! {
+                    <li>
+                        <button class="library-pick" data-testid=format!("add-{}", a.id)
+                            on:click=move |_| state.edit_structure(|j| edit::add_appliance(j, a, &target.get_untracked()))>
+                            "+ " {label}
+                        </button>
+                    </li>
+                }
+            })
+            .collect_view()
+    };
+    let totals = move || {
+        state
+            .draft
+            .with(edit::watts_by_group)
+            .into_iter()
+            .map(|(group, watts)| {
+                let amps = state.report.with(|r| match r {
+                    Some(Ok(rep)) => rep.legs.get(&group).map(|l| crate::format::amps(l.current_a)),
+                    _ => None,
+                });
+                view! { <li data-testid=format!("total-{group}")><strong>{group.clone()}</strong> ": " {format!("{watts:.0} W rated")} {amps.map(|a| format!(" · {a} now"))}</li> }
+            })
+            .collect_view()
+    };
+    let rows = move || (0..state.draft.with(|d| edit::loads(d).len())).collect::<Vec<usize>>();
+    view! {
+        <div class="tab-body" data-testid="loads-tab">
+            <fieldset>
+                <legend>"Add an appliance"</legend>
+                <SelectField label="Put it on".into() options=connects selected="L1-N".to_string() on_pick=move |v| target.set(v) testid="add-target" />
+                <input class="search" type="search" placeholder="Search appliances" data-testid="library-search" on:input=move |ev| query.set(event_target_value(&ev)) />
+                <ul class="library">{library_rows}</ul>
+                <button data-testid="add-custom" on:click=move |_| state.edit_structure(edit::add_custom)>"+ Custom load"</button>
+                <p class="note">"Library ratings are typical values (common practice); use the nameplate when you have it."</p>
+            </fieldset>
+            <ul class="totals">{totals}</ul>
+            <ul class="load-list">
+                <For each=rows key=move |i| (state.structure.get_untracked(), *i) let:index>
+                    <LoadRow index=index />
+                </For>
+            </ul>
+        </div>
+    }
+}
+
+#[component]
+fn LoadRow(index: usize) -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let load = state
+        .draft
+        .with_untracked(|d| edit::loads(d).get(index).cloned().unwrap_or_default());
+    let connects: Vec<(String, String)> = state
+        .draft
+        .with_untracked(edit::connect_options)
+        .into_iter()
+        .map(|c| (c.to_string(), c.to_string()))
+        .collect();
+    let models: Vec<(String, String)> = MODELS
+        .iter()
+        .map(|(v, l)| (v.to_string(), l.to_string()))
+        .collect();
+    let on = load.on.given().copied().unwrap_or(true);
+    let path = move |field: &str| format!("loads[{index}].{field}");
+    let problem = move |field: &'static str| {
+        let p = path(field);
+        Signal::derive(move || state.problem(&p))
+    };
+    let outcome = move || {
+        state.report.with(|r| match r {
+            Some(Ok(rep)) => rep.loads.get(index).map(|l| {
+                view! { <span class="row-result"><crate::components::OutcomeBadge outcome=l.outcome /> " " {crate::format::volts(l.voltage_v)}</span> }
+            }),
+            _ => None,
+        })
+    };
+    view! {
+        <li class="load-row" data-testid="load-row">
+            <div class="load-head">
+                <label class="check big">
+                    <input type="checkbox" prop:checked=on data-testid="load-on"
+                        on:change=move |ev| { let v = event_target_checked(&ev); state.edit(|j| edit::set_load_field(j, index, "on", if v { "true" } else { "false" })) } />
+                    "On"
+                </label>
+                {outcome}
+                <button class="danger small" data-testid="remove-load" on:click=move |_| state.edit_structure(|j| edit::remove_load(j, index))>"Remove"</button>
+            </div>
+            <TextField label="Name".into() initial=edit::text_of(&load.name) problem=problem("name")
+                on_text=move |t| state.edit(|j| edit::set_load_field(j, index, "name", &t)) testid="load-name" />
+            <div class="two">
+                <SelectField label="Connected".into() options=connects selected=edit::text_of(&load.connect)
+                    on_pick=move |v| state.edit_structure(|j| edit::set_load_field(j, index, "connect", &v)) testid="load-connect" />
+                <NumberField label="Watts".into() unit="W".to_string() initial=edit::text_of_number(&load.watts) problem=problem("watts")
+                    on_text=move |t| state.edit(|j| edit::set_load_field(j, index, "watts", &t)) testid="load-watts" />
+            </div>
+            <div class="two">
+                <SelectField label="Behaves as".into() options=models selected=edit::text_of(&load.model)
+                    on_pick=move |v| state.edit_structure(|j| edit::set_load_field(j, index, "model", &v)) testid="load-model" />
+                <NumberField label="Power factor".into() initial=edit::text_of_number(&load.power_factor) problem=problem("power_factor")
+                    on_text=move |t| state.edit(|j| edit::set_load_field(j, index, "power_factor", &t)) testid="load-pf" />
+            </div>
+            <p class="field-error">{move || { let p = path("connect"); state.problem(&p).unwrap_or_default() }}</p>
+        </li>
+    }
+}

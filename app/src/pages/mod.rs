@@ -1,0 +1,9 @@
+//! One module per screen.
+
+pub mod cautions;
+pub mod job;
+pub mod jobs;
+mod loads;
+mod results;
+mod service;
+mod whatif;

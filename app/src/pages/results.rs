@@ -1,0 +1,97 @@
+//! Results: legs, neutral, voltage drop and every appliance's voltage and outcome.
+
+use crate::components::OutcomeBadge;
+use crate::format;
+use crate::state::AppState;
+use leptos::prelude::*;
+use tapline_core::report::Report;
+
+/// The list of field problems, shown instead of results while the job is invalid.
+#[component]
+pub fn ProblemList() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    view! {
+        <div class="problems" role="alert" data-testid="problems">
+            <strong>"Fix these fields to see results (the last good version stays saved):"</strong>
+            <ul>{move || state.problems.get().into_iter().map(|p| view! { <li>{p.to_string()}</li> }).collect_view()}</ul>
+        </div>
+    }
+}
+
+#[component]
+pub fn ResultsTab() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    view! {
+        <div class="tab-body" data-testid="results-tab">
+            {move || state.report.with(|r| match r {
+                None => view! { <ProblemList /> }.into_any(),
+                Some(Err(e)) => view! { <p class="problems" role="alert">{format!("No solution: {e}")}</p> }.into_any(),
+                Some(Ok(rep)) => view! { <ReportView report=rep.clone() /> }.into_any(),
+            })}
+        </div>
+    }
+}
+
+#[component]
+fn ReportView(report: Report) -> impl IntoView {
+    let legs = report
+        .legs
+        .iter()
+        .map(|(name, leg)| {
+            view! {
+                <tr data-testid=format!("leg-{name}")>
+                    <th>{name.clone()}</th>
+                    <td class="big-figure">{format::amps(leg.current_a)}</td>
+                    <td class="big-figure" data-testid=format!("leg-volts-{name}")>{format::volts(leg.volts_to_neutral)}</td>
+                    <td>{leg.voltage_drop_v.map(|d| format!("{d:.1} V")).unwrap_or_else(|| "—".into())}</td>
+                    <td>{leg.ansi_range.unwrap_or("—")}</td>
+                </tr>
+            }
+        })
+        .collect_view();
+    let loads = report
+        .loads
+        .iter()
+        .map(|l| {
+            view! {
+                <li class="appliance" data-testid="appliance-result" data-outcome=l.outcome.code()>
+                    <div class="appliance-head">
+                        <span class="appliance-name">{l.name.clone()}</span>
+                        <span class="appliance-connect">{l.connect.clone()}</span>
+                        <OutcomeBadge outcome=l.outcome />
+                    </div>
+                    <div class="appliance-figures">
+                        <span class="big-figure" data-testid="appliance-volts">{format::volts(l.voltage_v)}</span>
+                        <span>{format::pct(l.percent_of_rated)} " of rated"</span>
+                        <span>{format::amps(l.current_a)}</span>
+                        <span>{format!("{:.0} W of {:.0} W", l.power_w, l.rated_w)}</span>
+                    </div>
+                    <p class="reason">{l.reason.clone()}</p>
+                </li>
+            }
+        })
+        .collect_view();
+    let notes = report
+        .notes
+        .iter()
+        .map(|n| view! { <p class="note">{n.clone()}</p> })
+        .collect_view();
+    let neutral = format!(
+        "{} · neutral bar {} from the transformer neutral",
+        report.neutral.state,
+        format::volts(report.neutral.panel_neutral_shift_v)
+    );
+    view! {
+        <h3>"At the panel"</h3>
+        <p class="neutral-line" data-testid="neutral-current">"Neutral current " <strong class="big-figure">{format::amps(report.neutral_current_a)}</strong></p>
+        <p class="note">{neutral}</p>
+        <table class="legs">
+            <thead><tr><th>"Leg"</th><th>"Current"</th><th>"To neutral"</th><th>"Drop"</th><th>"ANSI"</th></tr></thead>
+            <tbody>{legs}</tbody>
+        </table>
+        {notes}
+        <h3>"Appliances"</h3>
+        <ul class="appliances">{loads}</ul>
+        <p class="note">"Figures are estimates from a model of this job. Verify with a meter before acting."</p>
+    }
+}

@@ -1,0 +1,135 @@
+//! The service: system, transformer and service conductors.
+
+use crate::components::{NumberField, SelectField, TextField};
+use crate::edit::{self, Preset, Run, Units};
+use crate::format;
+use crate::state::AppState;
+use leptos::prelude::*;
+
+fn options(items: &[(&str, &str)]) -> Vec<(String, String)> {
+    items
+        .iter()
+        .map(|(v, l)| (v.to_string(), l.to_string()))
+        .collect()
+}
+
+fn size_options() -> Vec<(String, String)> {
+    tapline_core::conductors::Size::all()
+        .map(|s| {
+            let label = s.label();
+            let value = match s {
+                tapline_core::conductors::Size::Awg(r) => r.size.to_string(),
+                tapline_core::conductors::Size::Metric(r) => format!("{} mm2", r.mm2),
+            };
+            (value, label)
+        })
+        .collect()
+}
+
+#[component]
+pub fn ServiceTab() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let job = state.draft.get_untracked();
+    let units = state.units();
+    let preset = edit::preset_of(&job);
+    let custom = matches!(preset, Preset::CustomSplit | Preset::CustomWye);
+    let presets: Vec<(String, String)> = Preset::ALL
+        .iter()
+        .map(|p| (p.code().to_string(), p.label().to_string()))
+        .collect();
+    let has_t = job.transformer.given().is_some();
+    let problem = move |path: &'static str| Signal::derive(move || state.problem(path));
+
+    let conductor = move |run: Run, title: &'static str| {
+        let present = edit::has_conductor(&state.draft.get_untracked(), run);
+        let key = run.key();
+        let length_path = edit::length_path(run, units);
+        let lp = length_path.clone();
+        view! {
+            <fieldset>
+                <legend>{title}</legend>
+                <label class="check">
+                    <input type="checkbox" prop:checked=present data-testid=format!("{key}-present")
+                        on:change=move |ev| state.edit_structure(|j| edit::set_conductor_present(j, run, event_target_checked(&ev))) />
+                    {if run == Run::Hot { "Include service hot conductors" } else { "Give the neutral its own size (otherwise as the hots)" }}
+                </label>
+                <Show when=move || present>
+                    <SelectField label="Material".into() options=options(&[("al", "Aluminum"), ("cu", "Copper")])
+                        selected=edit::conductor_text(&state.draft.get_untracked(), run, "material")
+                        on_pick=move |v| state.edit(|j| edit::set_conductor_text(j, run, "material", &v)) testid=format!("{key}-material") />
+                    <SelectField label="Size".into() options=size_options()
+                        selected=edit::conductor_text(&state.draft.get_untracked(), run, "size")
+                        on_pick=move |v| state.edit(|j| edit::set_conductor_text(j, run, "size", &v)) testid=format!("{key}-size") />
+                    <NumberField label="One-way length".into() unit=units.code().to_string()
+                        initial=edit::length_text(&state.draft.get_untracked(), run, units)
+                        problem=Signal::derive({ let lp = lp.clone(); move || state.problem(&lp) })
+                        on_text=move |t| state.edit(|j| edit::set_length(j, run, &t, units)) testid=format!("{key}-length") />
+                    <p class="field-error">{let p = format!("service.{key}.size"); move || state.problem(&p).unwrap_or_default()}</p>
+                </Show>
+            </fieldset>
+        }
+    };
+
+    let figures = move || {
+        state.report.with(|r| match r {
+            Some(Ok(rep)) => rep.transformer.as_ref().map(|t| {
+                view! {
+                    <dl class="figures" data-testid="transformer-figures">
+                        <dt>"Turns ratio"</dt><dd data-testid="turns-ratio">{format::fixed(t.turns_ratio, 1)} " : 1"</dd>
+                        <dt>"Full-load current"</dt><dd>{format::amps(t.full_load_a)}</dd>
+                        <dt>"Available fault, line to line"</dt><dd data-testid="fault-ll">{format::fixed(t.available_fault_a, 0)} " A"</dd>
+                        <dt>"Available fault, line to neutral"</dt><dd>{format::fixed(t.available_fault_ln_a, 0)} " A"</dd>
+                        <dt>"Loading now"</dt><dd>{format::pct(Some(t.loading_pct))}</dd>
+                    </dl>
+                }
+            }),
+            _ => None,
+        })
+    };
+
+    view! {
+        <div class="tab-body" data-testid="service-tab">
+            <TextField label="Job name".into() initial=edit::text_of(&job.name) problem=problem("name")
+                on_text=move |t| state.edit(|j| j.name = tapline_core::job::Raw::Given(t)) testid="job-name" />
+            <TextField label="Address or notes".into() initial=edit::text_of(&job.notes) problem=problem("notes")
+                on_text=move |t| state.edit(|j| j.notes = tapline_core::job::Raw::Given(t)) testid="job-notes" />
+            <fieldset>
+                <legend>"System"</legend>
+                <SelectField label="Service".into() options=presets selected=preset.code().to_string()
+                    on_pick=move |code| if let Some(p) = Preset::from_code(&code) { state.edit_structure(|j| edit::set_preset(j, p)) }
+                    testid="system-preset" />
+                <Show when=move || custom>
+                    <NumberField label="Volts, leg to neutral".into() unit="V".to_string()
+                        initial=job.system.given().map(|s| edit::text_of_number(&s.volts_to_neutral)).unwrap_or_default()
+                        problem=problem("system.volts_to_neutral") on_text=move |t| state.edit(|j| edit::set_volts(j, &t)) testid="system-volts" />
+                </Show>
+            </fieldset>
+            <fieldset>
+                <legend>"Transformer"</legend>
+                <label class="check">
+                    <input type="checkbox" prop:checked=has_t data-testid="transformer-present"
+                        on:change=move |ev| state.edit_structure(|j| edit::set_transformer(j, event_target_checked(&ev))) />
+                    "Model the transformer (otherwise a stiff source at nominal voltage)"
+                </label>
+                <Show when=move || has_t>
+                    <NumberField label="Rating".into() unit="kVA".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), "kva")
+                        problem=problem("transformer.kva") on_text=move |t| state.edit(|j| edit::set_transformer_field(j, "kva", &t)) testid="transformer-kva" />
+                    <NumberField label="Primary voltage".into() unit="V".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), "primary_v")
+                        problem=problem("transformer.primary_v") on_text=move |t| state.edit(|j| edit::set_transformer_field(j, "primary_v", &t)) testid="transformer-primary" />
+                    <NumberField label="Impedance".into() unit="%Z".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), "impedance_pct")
+                        problem=problem("transformer.impedance_pct") on_text=move |t| state.edit(|j| edit::set_transformer_field(j, "impedance_pct", &t)) testid="transformer-z" />
+                    <NumberField label="X/R".into() initial=edit::transformer_text(&state.draft.get_untracked(), "x_over_r")
+                        problem=problem("transformer.x_over_r") on_text=move |t| state.edit(|j| edit::set_transformer_field(j, "x_over_r", &t)) testid="transformer-xr" />
+                    {figures}
+                </Show>
+            </fieldset>
+            {conductor(Run::Hot, "Service hot conductors")}
+            {conductor(Run::Neutral, "Service neutral conductor")}
+            <fieldset>
+                <legend>"Units"</legend>
+                <SelectField label="Lengths in".into() options=options(&[("ft", "feet"), ("m", "metres")]) selected=units.code().to_string()
+                    on_pick=move |v| state.set_units(Units::parse(&v)) testid="units" />
+            </fieldset>
+        </div>
+    }
+}

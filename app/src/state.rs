@@ -1,0 +1,356 @@
+//! Application state: signals for what is on screen, and memos that hand the draft job to the
+//! engine. Every number shown comes from these memos.
+
+use crate::edit;
+use crate::storage::{self, Settings, StoredJob};
+use leptos::prelude::*;
+use tapline_core::job::{JobFile, Raw};
+use tapline_core::report::{analyze, Report};
+use tapline_core::validate::{validate, Problem};
+use tapline_core::whatif::{sweep, sweep_points, what_if, Sweep, WhatIf};
+
+/// Points in the app's neutral sweep plot.
+pub const SWEEP_POINTS: usize = 160;
+
+/// Which screen is showing.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Screen {
+    Jobs,
+    Job,
+    Cautions,
+}
+
+/// Which part of a job is showing.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Tab {
+    Service,
+    Loads,
+    Results,
+    WhatIf,
+}
+
+/// A saved job in the list.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Entry {
+    pub id: String,
+    pub stored: StoredJob,
+}
+
+/// The app's state, passed through context as small `Copy` handles.
+#[derive(Clone, Copy)]
+pub struct AppState {
+    pub jobs: RwSignal<Vec<Entry>>,
+    pub open_id: RwSignal<Option<String>>,
+    pub draft: RwSignal<JobFile>,
+    /// Bumped when loads are added or removed or a job is opened, so forms re-read their values.
+    pub structure: RwSignal<u64>,
+    pub screen: RwSignal<Screen>,
+    pub tab: RwSignal<Tab>,
+    pub banners: RwSignal<Vec<String>>,
+    pub settings: RwSignal<Settings>,
+    /// The last deleted job, for undo.
+    pub deleted: RwSignal<Option<Entry>>,
+    /// Messages from the last import.
+    pub import_problems: RwSignal<Vec<String>>,
+    pub problems: Memo<Vec<Problem>>,
+    pub report: Memo<Option<Result<Report, String>>>,
+    pub what_if: Memo<Option<Result<WhatIf, String>>>,
+    pub sweep: Memo<Option<Result<Sweep, String>>>,
+}
+
+/// Milliseconds since 1970, from the browser's clock.
+pub fn now_ms() -> f64 {
+    js_sys::Date::now()
+}
+
+fn new_id() -> String {
+    // Time plus a random part: unique enough for one person's jobs, stable as a storage key.
+    format!(
+        "{:x}{:04x}",
+        now_ms() as u64,
+        (js_sys::Math::random() * 65535.0) as u32
+    )
+}
+
+impl AppState {
+    /// Builds the state, loads saved jobs and offers the demo job on first start.
+    pub fn new() -> AppState {
+        let draft = RwSignal::new(edit::new_job("New job"));
+        let problems = Memo::new(move |_| draft.with(|d| validate(d).err().unwrap_or_default()));
+        let report = Memo::new(move |_| {
+            draft.with(|d| {
+                validate(d)
+                    .ok()
+                    .map(|j| analyze(&j).map_err(|e| e.to_string()))
+            })
+        });
+        let what_if = Memo::new(move |_| {
+            draft.with(|d| {
+                validate(d)
+                    .ok()
+                    .map(|j| what_if(&j).map_err(|e| e.to_string()))
+            })
+        });
+        let sweep = Memo::new(move |_| {
+            draft.with(|d| {
+                validate(d)
+                    .ok()
+                    .map(|j| sweep(&j, &sweep_points(SWEEP_POINTS)).map_err(|e| e.to_string()))
+            })
+        });
+        let state = AppState {
+            jobs: RwSignal::new(Vec::new()),
+            open_id: RwSignal::new(None),
+            draft,
+            structure: RwSignal::new(0),
+            screen: RwSignal::new(Screen::Jobs),
+            tab: RwSignal::new(Tab::Results),
+            banners: RwSignal::new(Vec::new()),
+            settings: RwSignal::new(storage::load_settings()),
+            deleted: RwSignal::new(None),
+            import_problems: RwSignal::new(Vec::new()),
+            problems,
+            report,
+            what_if,
+            sweep,
+        };
+        state.load();
+        state
+    }
+
+    fn load(&self) {
+        let mut banners = Vec::new();
+        if !storage::available() {
+            banners.push(storage::StorageError::Unavailable.to_string());
+        }
+        let (jobs, problems) = storage::load_jobs();
+        banners.extend(problems.iter().map(|p| p.to_string()));
+        let mut entries: Vec<Entry> = jobs
+            .into_iter()
+            .map(|(id, stored)| Entry { id, stored })
+            .collect();
+        if storage::available() && !storage::seeded() {
+            if let Ok(demo) = tapline_core::job::parse_job(tapline_core::demo::DEMO_JOB) {
+                let entry = Entry {
+                    id: new_id(),
+                    stored: StoredJob {
+                        saved_ms: now_ms(),
+                        job: demo,
+                    },
+                };
+                match storage::save_job(&entry.id, &entry.stored)
+                    .and_then(|_| storage::mark_seeded())
+                {
+                    Ok(()) => entries.insert(0, entry),
+                    Err(e) => banners.push(e.to_string()),
+                }
+            }
+        } else if !storage::available() {
+            // Without storage the demo still opens, so the app is useful; nothing is saved.
+            if let Ok(demo) = tapline_core::job::parse_job(tapline_core::demo::DEMO_JOB) {
+                entries.push(Entry {
+                    id: new_id(),
+                    stored: StoredJob {
+                        saved_ms: now_ms(),
+                        job: demo,
+                    },
+                });
+            }
+        }
+        self.jobs.set(entries);
+        self.banners.set(banners);
+    }
+
+    /// Opens a saved job in the editor.
+    pub fn open(&self, id: &str) {
+        let Some(entry) = self
+            .jobs
+            .with_untracked(|j| j.iter().find(|e| e.id == id).cloned())
+        else {
+            return;
+        };
+        self.draft.set(entry.stored.job);
+        self.open_id.set(Some(entry.id));
+        self.structure.update(|s| *s += 1);
+        self.tab.set(Tab::Results);
+        self.screen.set(Screen::Job);
+    }
+
+    /// Adds a job to the list and storage (a new id: nothing existing is overwritten) and opens it.
+    pub fn add_and_open(&self, job: JobFile) {
+        let entry = Entry {
+            id: new_id(),
+            stored: StoredJob {
+                saved_ms: now_ms(),
+                job,
+            },
+        };
+        if let Err(e) = storage::save_job(&entry.id, &entry.stored) {
+            self.banner(e.to_string());
+        }
+        let id = entry.id.clone();
+        self.jobs.update(|j| j.insert(0, entry));
+        self.open(&id);
+    }
+
+    /// Applies an edit to the draft and saves it if the result is valid. An invalid draft stays on
+    /// screen with its field messages; the last valid version stays saved.
+    pub fn edit(&self, f: impl FnOnce(&mut JobFile)) {
+        self.draft.update(f);
+        self.save_draft();
+    }
+
+    /// Like [`AppState::edit`] for edits that add or remove rows.
+    pub fn edit_structure(&self, f: impl FnOnce(&mut JobFile)) {
+        self.edit(f);
+        self.structure.update(|s| *s += 1);
+    }
+
+    fn save_draft(&self) {
+        let Some(id) = self.open_id.get_untracked() else {
+            return;
+        };
+        let job = self.draft.get_untracked();
+        if validate(&job).is_err() {
+            return;
+        }
+        let stored = StoredJob {
+            saved_ms: now_ms(),
+            job,
+        };
+        if let Err(e) = storage::save_job(&id, &stored) {
+            self.banner(e.to_string());
+        }
+        self.jobs.update(|jobs| {
+            if let Some(e) = jobs.iter_mut().find(|e| e.id == id) {
+                e.stored = stored;
+            }
+        });
+    }
+
+    /// Duplicates a saved job.
+    pub fn duplicate(&self, id: &str) {
+        if let Some(e) = self
+            .jobs
+            .with_untracked(|j| j.iter().find(|e| e.id == id).cloned())
+        {
+            let entry = Entry {
+                id: new_id(),
+                stored: StoredJob {
+                    saved_ms: now_ms(),
+                    job: edit::duplicate(&e.stored.job),
+                },
+            };
+            if let Err(err) = storage::save_job(&entry.id, &entry.stored) {
+                self.banner(err.to_string());
+            }
+            self.jobs.update(|j| j.insert(0, entry));
+        }
+    }
+
+    /// Renames a saved job (an empty name is refused).
+    pub fn rename(&self, id: &str, name: &str) {
+        if name.trim().is_empty() {
+            return;
+        }
+        let mut found = None;
+        self.jobs.update(|jobs| {
+            if let Some(e) = jobs.iter_mut().find(|e| e.id == id) {
+                e.stored.job.name = Raw::Given(name.trim().to_string());
+                e.stored.saved_ms = now_ms();
+                found = Some(e.stored.clone());
+            }
+        });
+        if let Some(stored) = found {
+            if let Err(e) = storage::save_job(id, &stored) {
+                self.banner(e.to_string());
+            }
+        }
+    }
+
+    /// Deletes a saved job, keeping it for undo.
+    pub fn delete(&self, id: &str) {
+        let mut removed = None;
+        self.jobs.update(|jobs| {
+            if let Some(pos) = jobs.iter().position(|e| e.id == id) {
+                removed = Some(jobs.remove(pos));
+            }
+        });
+        if let Some(entry) = removed {
+            if let Err(e) = storage::delete_job(id) {
+                self.banner(e.to_string());
+            }
+            self.deleted.set(Some(entry));
+        }
+    }
+
+    /// Restores the last deleted job.
+    pub fn undo_delete(&self) {
+        if let Some(entry) = self.deleted.get_untracked() {
+            if let Err(e) = storage::save_job(&entry.id, &entry.stored) {
+                self.banner(e.to_string());
+            }
+            self.jobs.update(|j| j.insert(0, entry));
+            self.deleted.set(None);
+        }
+    }
+
+    /// Shows a message at the top of the screen.
+    pub fn banner(&self, text: String) {
+        self.banners.update(|b| {
+            if !b.contains(&text) {
+                b.push(text)
+            }
+        });
+    }
+
+    /// Changes the length units.
+    pub fn set_units(&self, units: edit::Units) {
+        self.settings.update(|s| s.units = units.code().to_string());
+        self.structure.update(|s| *s += 1);
+        if let Err(e) = storage::save_settings(&self.settings.get_untracked()) {
+            self.banner(e.to_string());
+        }
+    }
+
+    /// Records that the cautions were read.
+    pub fn accept_cautions(&self) {
+        self.settings.update(|s| s.cautions_seen = true);
+        if let Err(e) = storage::save_settings(&self.settings.get_untracked()) {
+            self.banner(e.to_string());
+        }
+    }
+
+    /// The units setting.
+    pub fn units(&self) -> edit::Units {
+        edit::Units::parse(&self.settings.with(|s| s.units.clone()))
+    }
+
+    /// The problem message for a field path, if any (reactive).
+    pub fn problem(&self, path: &str) -> Option<String> {
+        self.problems.with(|p| edit::problem_at(p, path))
+    }
+}
+
+impl Default for AppState {
+    fn default() -> Self {
+        AppState::new()
+    }
+}
+
+/// The one-line status of a saved job for the list, from the engine (or why there is none).
+pub fn status_of(job: &JobFile) -> String {
+    match validate(job) {
+        Err(p) => format!("{} field(s) to fix", p.len()),
+        Ok(j) => match what_if(&j) {
+            Ok(w) => {
+                let now = match analyze(&j) {
+                    Ok(r) => r,
+                    Err(e) => return e.to_string(),
+                };
+                crate::format::status_line(&now, Some(&w.open))
+            }
+            Err(e) => e.to_string(),
+        },
+    }
+}

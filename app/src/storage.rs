@@ -1,0 +1,172 @@
+//! The only module that touches browser storage.
+//!
+//! Storage schema, version 1 (local storage, one key per item so one bad item cannot spoil the
+//! rest):
+//! - `tapline.v1.job.<id>`: `{"saved_ms": <ms since 1970>, "job": <job file, format version 1>}`
+//!   (the job is exactly what `tapline solve` reads);
+//! - `tapline.v1.aside.<id>`: a job item that could not be read (corrupt, or written by a newer
+//!   version), moved here untouched and reported, never deleted;
+//! - `tapline.v1.settings`: `{"units": "ft" | "m", "cautions_seen": bool}`;
+//! - `tapline.v1.seeded`: `true` once the demo job has been offered, so deleting it sticks.
+//!
+//! Every failure is a [`StorageError`] returned to the caller; nothing here panics. When local
+//! storage is missing (private mode, blocked) the app keeps computing and says so.
+
+use gloo_storage::{LocalStorage, Storage};
+use serde::{Deserialize, Serialize};
+use tapline_core::job::{JobFile, Raw, JOB_VERSION};
+
+const JOB_PREFIX: &str = "tapline.v1.job.";
+const ASIDE_PREFIX: &str = "tapline.v1.aside.";
+const SETTINGS_KEY: &str = "tapline.v1.settings";
+const SEEDED_KEY: &str = "tapline.v1.seeded";
+
+/// What went wrong with storage.
+#[derive(Clone, Debug, PartialEq)]
+pub enum StorageError {
+    /// Local storage is missing or blocked (private browsing, a locked-down browser).
+    Unavailable,
+    /// The browser refused to write, usually because storage is full.
+    WriteRefused(String),
+    /// An item could not be read and was set aside under `aside_key`.
+    SetAside { key: String, reason: String },
+}
+
+impl std::fmt::Display for StorageError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            StorageError::Unavailable => f.write_str(
+                "This browser is not letting Tapline save (private mode or storage blocked). Results still work; export jobs to keep them.",
+            ),
+            StorageError::WriteRefused(why) => write!(
+                f,
+                "Could not save: the browser refused ({why}). Storage may be full; export jobs to keep them."
+            ),
+            StorageError::SetAside { key, reason } => {
+                write!(f, "A saved job could not be read and was set aside as {key}: {reason}")
+            }
+        }
+    }
+}
+
+/// A saved job as stored.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct StoredJob {
+    pub saved_ms: f64,
+    pub job: JobFile,
+}
+
+/// User settings.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
+pub struct Settings {
+    pub units: String,
+    pub cautions_seen: bool,
+}
+
+impl Default for Settings {
+    fn default() -> Self {
+        Settings {
+            units: "ft".to_string(),
+            cautions_seen: false,
+        }
+    }
+}
+
+fn raw() -> Result<web_sys::Storage, StorageError> {
+    web_sys::window()
+        .and_then(|w| w.local_storage().ok().flatten())
+        .ok_or(StorageError::Unavailable)
+}
+
+/// True when local storage can be used.
+pub fn available() -> bool {
+    raw().is_ok()
+}
+
+fn keys_with(prefix: &str) -> Result<Vec<String>, StorageError> {
+    let s = raw()?;
+    let n = s.length().map_err(|_| StorageError::Unavailable)?;
+    Ok((0..n)
+        .filter_map(|i| s.key(i).ok().flatten())
+        .filter(|k| k.starts_with(prefix))
+        .collect())
+}
+
+/// Loads every saved job, with the problems met. A job that cannot be read (broken JSON, or a
+/// newer format than this app reads) is moved aside untouched and reported; the others load.
+pub fn load_jobs() -> (Vec<(String, StoredJob)>, Vec<StorageError>) {
+    let keys = match keys_with(JOB_PREFIX) {
+        Ok(k) => k,
+        Err(e) => return (Vec::new(), vec![e]),
+    };
+    let Ok(s) = raw() else {
+        return (Vec::new(), vec![StorageError::Unavailable]);
+    };
+    let mut jobs = Vec::new();
+    let mut problems = Vec::new();
+    for key in keys {
+        let id = key.trim_start_matches(JOB_PREFIX).to_string();
+        let text = s.get_item(&key).ok().flatten().unwrap_or_default();
+        let parsed: Result<StoredJob, String> = serde_json::from_str::<StoredJob>(&text)
+            .map_err(|e| format!("not a readable job ({e})"))
+            .and_then(|stored| match &stored.job.version {
+                Raw::Given(v) if *v > JOB_VERSION => Err(format!(
+                    "written in job format {v}, newer than this app reads ({JOB_VERSION})"
+                )),
+                _ => Ok(stored),
+            });
+        match parsed {
+            Ok(stored) => jobs.push((id, stored)),
+            Err(reason) => {
+                let aside = format!("{ASIDE_PREFIX}{id}");
+                // Copy first, remove second: if the copy fails the original stays put.
+                if s.set_item(&aside, &text).is_ok() {
+                    let _ = s.remove_item(&key);
+                }
+                problems.push(StorageError::SetAside { key: aside, reason });
+            }
+        }
+    }
+    jobs.sort_by(|a, b| b.1.saved_ms.total_cmp(&a.1.saved_ms));
+    (jobs, problems)
+}
+
+/// Saves one job under its id.
+pub fn save_job(id: &str, stored: &StoredJob) -> Result<(), StorageError> {
+    raw()?;
+    LocalStorage::set(format!("{JOB_PREFIX}{id}"), stored)
+        .map_err(|e| StorageError::WriteRefused(e.to_string()))
+}
+
+/// Deletes one job.
+pub fn delete_job(id: &str) -> Result<(), StorageError> {
+    raw()?
+        .remove_item(&format!("{JOB_PREFIX}{id}"))
+        .map_err(|_| StorageError::WriteRefused("remove failed".to_string()))
+}
+
+/// Reads the settings (defaults when absent or unreadable).
+pub fn load_settings() -> Settings {
+    if raw().is_err() {
+        return Settings::default();
+    }
+    LocalStorage::get(SETTINGS_KEY).unwrap_or_default()
+}
+
+/// Saves the settings.
+pub fn save_settings(settings: &Settings) -> Result<(), StorageError> {
+    raw()?;
+    LocalStorage::set(SETTINGS_KEY, settings).map_err(|e| StorageError::WriteRefused(e.to_string()))
+}
+
+/// True when the demo job has already been offered once.
+pub fn seeded() -> bool {
+    raw().is_ok() && LocalStorage::get::<bool>(SEEDED_KEY).unwrap_or(false)
+}
+
+/// Records that the demo job has been offered.
+pub fn mark_seeded() -> Result<(), StorageError> {
+    raw()?;
+    LocalStorage::set(SEEDED_KEY, true).map_err(|e| StorageError::WriteRefused(e.to_string()))
+}
