@@ -41,21 +41,23 @@ pub fn LoadsTab() -> impl IntoView {
             })
             .collect_view()
     };
-    let totals = move || {
-        state
-            .draft
-            .with(edit::watts_by_group)
-            .into_iter()
-            .map(|(group, watts)| {
-                let amps = state.report.with(|r| match r {
-                    Some(Ok(rep)) => rep.legs.get(&group).map(|l| crate::format::amps(l.current_a)),
-                    _ => None,
-                });
-                view! { <li data-testid=format!("total-{group}")><strong>{group.clone()}</strong> ": " {format!("{watts:.0} W rated")} {amps.map(|a| format!(" · {a} now"))}</li> }
-            })
-            .collect_view()
+    // Loads grouped by leg (or pair of legs), each group with its rated total and present current.
+    let groups = move || {
+        state.structure.track();
+        state.draft.with_untracked(|d| {
+            let loads = edit::loads(d);
+            let mut groups: Vec<(String, Vec<usize>)> = Vec::new();
+            for (i, l) in loads.iter().enumerate() {
+                let g = edit::group_of(l);
+                match groups.iter_mut().find(|(k, _)| *k == g) {
+                    Some((_, v)) => v.push(i),
+                    None => groups.push((g, vec![i])),
+                }
+            }
+            groups.sort_by(|a, b| a.0.cmp(&b.0));
+            groups
+        })
     };
-    let rows = move || (0..state.draft.with(|d| edit::loads(d).len())).collect::<Vec<usize>>();
     view! {
         <div class="tab-body" data-testid="loads-tab">
             <fieldset>
@@ -66,13 +68,47 @@ pub fn LoadsTab() -> impl IntoView {
                 <button data-testid="add-custom" on:click=move |_| state.edit_structure(edit::add_custom)>"+ Custom load"</button>
                 <p class="note">"Library ratings are typical values (common practice); use the nameplate when you have it."</p>
             </fieldset>
-            <ul class="totals">{totals}</ul>
-            <ul class="load-list">
-                <For each=rows key=move |i| (state.structure.get_untracked(), *i) let:index>
-                    <LoadRow index=index />
-                </For>
-            </ul>
+            <For each=groups key=move |(g, rows)| (state.structure.get_untracked(), g.clone(), rows.len()) let:group>
+                <LoadGroup name=group.0 rows=group.1 />
+            </For>
         </div>
+    }
+}
+
+#[component]
+fn LoadGroup(name: String, rows: Vec<usize>) -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let key = name.clone();
+    let total = move || {
+        let watts = state
+            .draft
+            .with(edit::watts_by_group)
+            .into_iter()
+            .find(|(g, _)| *g == key)
+            .map(|(_, w)| w)
+            .unwrap_or(0.0);
+        let amps = state.report.with(|r| match r {
+            Some(Ok(rep)) => rep.legs.get(&key).map(|l| crate::format::amps(l.current_a)),
+            _ => None,
+        });
+        format!(
+            "{watts:.0} W rated on{}",
+            amps.map(|a| format!(" · leg now {a}")).unwrap_or_default()
+        )
+    };
+    let label = if name.contains('-') {
+        format!("Across {name}")
+    } else {
+        format!("On {name}")
+    };
+    view! {
+        <section class="load-group" data-testid=format!("group-{name}")>
+            <h3 class="group-head">{label}</h3>
+            <p class="group-total" data-testid=format!("total-{name}")>{total}</p>
+            <ul class="load-list">
+                {rows.into_iter().map(|index| view! { <LoadRow index=index /> }).collect_view()}
+            </ul>
+        </section>
     }
 }
 

@@ -1,0 +1,23 @@
+#!/usr/bin/env bash
+# Measures what a phone downloads for the release build in dist/ (wasm, js, css, html) raw,
+# gzip -9 and brotli -q 11, prints a table and fails over the brotli budget.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+# Budget for the whole app, brotli-compressed: 300 KiB.
+BUDGET=$((300 * 1024))
+[ -d dist ] || { echo "size-check: no dist/; build first (scripts/build.sh)" >&2; exit 1; }
+printf '%-44s %10s %10s %10s\n' file raw gzip brotli
+total_raw=0; total_gz=0; total_br=0
+while IFS= read -r f; do
+  raw=$(stat -c %s "$f")
+  gz=$(gzip -9 -c "$f" | wc -c)
+  br=$(brotli -q 11 -c "$f" | wc -c)
+  total_raw=$((total_raw + raw)); total_gz=$((total_gz + gz)); total_br=$((total_br + br))
+  printf '%-44s %10d %10d %10d\n' "${f#dist/}" "$raw" "$gz" "$br"
+done < <(find dist -type f \( -name '*.wasm' -o -name '*.js' -o -name '*.css' -o -name '*.html' \) | sort)
+printf '%-44s %10d %10d %10d\n' TOTAL "$total_raw" "$total_gz" "$total_br"
+if [ "$total_br" -gt "$BUDGET" ]; then
+  echo "size-check: FAILED: ${total_br} bytes brotli is over the ${BUDGET}-byte budget" >&2
+  exit 1
+fi
+echo "size-check: ok, ${total_br} of ${BUDGET} bytes brotli"

@@ -1,0 +1,22 @@
+#!/usr/bin/env bash
+# Sets up what is missing and runs every check: formatting, lints, the Rust unit, integration,
+# property and reference tests (including the ngspice cross-check), the release WebAssembly build,
+# the size budget and the browser tests in headless Chromium.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+scripts/setup.sh test
+source scripts/env.sh
+step() { printf '\n\033[1m== %s ==\033[0m\n' "$*"; }
+
+step "format"
+cargo fmt --all -- --check
+step "lints"
+cargo clippy --workspace --all-targets --locked -- -D warnings
+step "Rust tests (engine, command line, app logic)"
+cargo test --workspace --locked
+step "release build"
+trunk build --release --offline
+step "size"
+scripts/size-check.sh
+step "browser tests (headless Chromium, phone size)"
+node --test tests/browser/

@@ -1,0 +1,220 @@
+// Browser tests at phone size in headless Chromium from Debian.
+import { after, before, describe, test } from 'node:test';
+import assert from 'node:assert/strict';
+import { readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { OUTPUT, ROOT, openApp, phone, shot, start } from './harness.mjs';
+import { serve } from './server.mjs';
+
+let env;
+before(async () => { env = await start(); });
+after(async () => { await env?.browser.close(); env?.server.close(); });
+
+const local = (seen) => [...seen.hosts].filter((h) => h !== '127.0.0.1');
+
+describe('the app shell', () => {
+  test('loads at phone size with no console errors and no request beyond 127.0.0.1', async () => {
+    const { context, page, seen } = await phone(env.browser);
+    await openApp(page, env.url);
+    assert.equal(await page.textContent('[data-testid=app-title]'), 'Tapline');
+    assert.match(await page.textContent('[data-testid=caution-line]'), /qualified persons/);
+    // The demo job is there on first start, with its status line from the engine.
+    assert.match(await page.textContent('[data-testid=job-status]'), /^neutral \d+ A · if it opens: /);
+    await shot(page, 'phone-jobs');
+    assert.deepEqual(seen.errors, []);
+    assert.deepEqual(local(seen), []);
+    await context.close();
+  });
+
+  test('fits 360 px with no sideways scrolling and touch targets of at least 44 px', async () => {
+    const { context, page } = await phone(env.browser, { viewport: { width: 360, height: 740 } });
+    await openApp(page, env.url);
+    for (const tab of [null, 'tab-service', 'tab-loads', 'tab-results', 'tab-whatif']) {
+      if (tab === null) {
+        await page.click('[data-testid=open-job]');
+      } else {
+        await page.click(`[data-testid=${tab}]`);
+      }
+      const width = await page.evaluate(() => document.documentElement.scrollWidth);
+      assert.ok(width <= 360, `${tab}: page is ${width} px wide`);
+      const small = await page.$$eval('button, select, input[type=text], input[type=search]', (els) =>
+        els.filter((e) => e.offsetParent !== null)
+          .map((e) => [e.getAttribute('data-testid') ?? e.textContent, e.getBoundingClientRect().height])
+          .filter(([, h]) => h < 44));
+      assert.deepEqual(small, [], `${tab}: targets under 44 px`);
+    }
+    await context.close();
+  });
+});
+
+describe('jobs', () => {
+  test('create a job, add loads from the library and see live results', async () => {
+    const { context, page, seen } = await phone(env.browser);
+    await openApp(page, env.url);
+    await page.click('[data-testid=new-job]');
+    await page.click('[data-testid=tab-loads]');
+    await page.fill('[data-testid=library-search]', 'space');
+    await page.click('[data-testid=add-space-heater]');
+    await page.selectOption('[data-testid=add-target]', 'L2-N');
+    await page.fill('[data-testid=library-search]', '');
+    await page.click('[data-testid=add-tv]');
+    assert.equal(await page.locator('[data-testid=load-row]').count(), 2);
+    // Grouped by leg, each group with its total (rated watts; the leg current from the engine).
+    assert.match(await page.textContent('[data-testid=total-L1]'), /^1500 W rated on · leg now 12\.5 A$/);
+    assert.match(await page.textContent('[data-testid=total-L2]'), /^120 W rated on/);
+    await shot(page, 'phone-loads');
+    await page.click('[data-testid=tab-results]');
+    const names = await page.locator('[data-testid=appliance-result] .appliance-name').allTextContents();
+    assert.deepEqual(names, ['Space heater', 'Television']);
+    // 1500 W at 120 V on a stiff source: 12.5 A on L1 (the engine's number, formatted).
+    assert.match(await page.textContent('[data-testid=leg-L1]'), /12\.5 A/);
+    await shot(page, 'phone-results');
+    assert.deepEqual(seen.errors, []);
+    await context.close();
+  });
+
+  test('set the neutral loose and open and read each appliance outcome', async () => {
+    const { context, page } = await phone(env.browser);
+    await openApp(page, env.url);
+    await page.click('[data-testid=open-job]');
+    await page.click('[data-testid=tab-whatif]');
+    assert.ok(await page.isVisible('[data-testid=caution-gate]'), 'cautions come first');
+    await page.click('[data-testid=accept-cautions]');
+    await page.click('[data-testid=neutral-loose]');
+    await page.fill('[data-testid=neutral-ohms]', '3');
+    await page.waitForSelector('[data-testid=sweep-plot] path');
+    await shot(page, 'phone-whatif-loose');
+    const ifOpen = await page.$$eval('[data-testid=if-open]', (els) => els.map((e) => e.getAttribute('data-outcome')));
+    assert.ok(ifOpen.includes('likely_damage'), `outcomes if open: ${ifOpen}`);
+    await page.click('[data-testid=neutral-open]');
+    await page.click('[data-testid=tab-results]');
+    const outcomes = await page.$$eval('[data-testid=appliance-result]', (els) => els.map((e) => e.getAttribute('data-outcome')));
+    assert.ok(outcomes.includes('likely_damage') && outcomes.includes('stall'), `outcomes open: ${outcomes}`);
+    await shot(page, 'phone-results-open');
+    await context.close();
+  });
+
+  test('a value written survives a reload; a bad value shows its field and the last good job stays saved', async () => {
+    const { context, page } = await phone(env.browser);
+    await openApp(page, env.url);
+    await page.click('[data-testid=open-job]');
+    await page.click('[data-testid=tab-service]');
+    await page.fill('[data-testid=job-name]', '9 Quarry Lane');
+    await page.click('[data-testid=tab-loads]');
+    await page.locator('[data-testid=load-watts]').first().fill('lots');
+    assert.match(await page.locator('.field.bad .field-error').first().textContent(), /must be a positive number/);
+    await page.click('[data-testid=tab-results]');
+    assert.ok(await page.isVisible('[data-testid=problems]'));
+    await page.reload();
+    await page.waitForSelector('[data-testid=job-card]');
+    assert.match(await page.textContent('[data-testid=job-card]'), /9 Quarry Lane/);
+    await page.click('[data-testid=open-job]');
+    await page.click('[data-testid=tab-loads]');
+    assert.equal(await page.locator('[data-testid=load-watts]').first().inputValue(), '1500');
+    await context.close();
+  });
+
+  test('duplicate, rename, delete with undo, and search', async () => {
+    const { context, page } = await phone(env.browser);
+    await openApp(page, env.url);
+    await page.click('[data-testid=duplicate-job]');
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 2);
+    await page.locator('[data-testid=rename-job]').first().click();
+    await page.fill('[data-testid=rename-input]', 'Shop at 3 Kiln Yard');
+    await page.click('[data-testid=rename-save]');
+    await page.fill('[data-testid=job-search]', 'kiln');
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 1);
+    await page.fill('[data-testid=job-search]', '');
+    await page.locator('[data-testid=delete-job]').first().click();
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 1);
+    await page.click('[data-testid=undo-delete]');
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 2);
+    await context.close();
+  });
+
+  test('export a job and import it back; a broken file shows the engine errors and changes nothing', async () => {
+    const { context, page } = await phone(env.browser);
+    await openApp(page, env.url);
+    const [download] = await Promise.all([page.waitForEvent('download'), page.click('[data-testid=export-job]')]);
+    const path = join(OUTPUT, 'exported-job.json');
+    await download.saveAs(path);
+    const exported = JSON.parse(readFileSync(path, 'utf8'));
+    assert.equal(exported.version, 1);
+    assert.match(exported.name, /Larkspur/);
+    await page.setInputFiles('[data-testid=import-file]', path);
+    await page.waitForSelector('[data-testid=job-page]');
+    await page.click('[data-testid=back-to-jobs]');
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 2);
+
+    const broken = join(OUTPUT, 'broken-job.json');
+    writeFileSync(broken, JSON.stringify({ version: 1, system: { kind: 'split-phase' }, loads: [{ connect: 'L9-N', model: 'resistive', watts: -3 }] }));
+    await page.setInputFiles('[data-testid=import-file]', broken);
+    await page.waitForSelector('[data-testid=import-problems]');
+    const text = await page.textContent('[data-testid=import-problems]');
+    assert.match(text, /loads\[0\]\.connect/);
+    assert.match(text, /loads\[0\]\.watts: must be a positive number/);
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 2);
+    await shot(page, 'phone-import-error');
+    await context.close();
+  });
+});
+
+describe('storage trouble', () => {
+  test('with storage blocked the app says so and still computes', async () => {
+    const { context, page, seen } = await phone(env.browser);
+    await context.addInitScript(() => {
+      Object.defineProperty(window, 'localStorage', { get() { throw new DOMException('blocked', 'SecurityError'); } });
+    });
+    await openApp(page, env.url);
+    assert.match(await page.textContent('[data-testid=banner]'), /not letting Tapline save/);
+    await page.click('[data-testid=open-job]');
+    assert.ok(await page.locator('[data-testid=appliance-result]').count() > 0);
+    assert.deepEqual(seen.errors, []);
+    await context.close();
+  });
+
+  test('a corrupt or newer stored job is set aside and reported; the others load', async () => {
+    const { context, page } = await phone(env.browser);
+    await context.addInitScript(() => {
+      if (!sessionStorage.getItem('seeded-bad')) {
+        sessionStorage.setItem('seeded-bad', '1');
+        localStorage.setItem('tapline.v1.job.broken', '{"saved_ms": 1, "job": ');
+        localStorage.setItem('tapline.v1.job.future', JSON.stringify({ saved_ms: 2, job: { version: 9, name: 'From the future' } }));
+      }
+    });
+    await openApp(page, env.url);
+    const banners = await page.locator('[data-testid=banner]').allTextContents();
+    assert.equal(banners.filter((b) => /set aside/.test(b)).length, 2, banners.join('\n'));
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 1);
+    const kept = await page.evaluate(() => [localStorage.getItem('tapline.v1.aside.broken'), localStorage.getItem('tapline.v1.aside.future')]);
+    assert.equal(kept[0], '{"saved_ms": 1, "job": ');
+    assert.match(kept[1], /From the future/);
+    await context.close();
+  });
+});
+
+describe('offline', () => {
+  test('after the service worker is active, a reload with the network off still opens the app', async () => {
+    // A server of its own, stopped before the reload, so nothing can answer but the cache.
+    const server = await serve(join(ROOT, 'dist'));
+    const url = `http://127.0.0.1:${server.address().port}/`;
+    const { context, page } = await phone(env.browser);
+    await openApp(page, url);
+    await page.evaluate(async () => { await navigator.serviceWorker.ready; });
+    if (!(await page.evaluate(() => navigator.serviceWorker.controller !== null))) {
+      await page.reload();
+      await page.waitForSelector('[data-testid=jobs-page]');
+    }
+    assert.ok(await page.evaluate(() => navigator.serviceWorker.controller !== null), 'the worker controls the page');
+    await context.setOffline(true);
+    const closed = new Promise((done) => server.close(done));
+    server.closeAllConnections();
+    await closed;
+    await page.reload();
+    await page.waitForSelector('[data-testid=job-card]', { timeout: 20000 });
+    await page.click('[data-testid=open-job]');
+    assert.ok(await page.locator('[data-testid=appliance-result]').count() > 0);
+    await shot(page, 'phone-offline');
+    await context.close();
+  });
+});
