@@ -407,12 +407,20 @@ fn iterate(
                 None => f64::INFINITY,
             };
             last_vt[k] = Some(vt);
-            let target = p.characteristic.admittance(vt.norm_sqr().sqrt(), states[k]);
-            y[k] += (target - y[k]) * step;
         }
         let change = change_sq.sqrt();
+        // Return before updating the admittances, so the voltages handed back are exactly the
+        // solution for the admittances handed back, and every current computed from them balances.
         if change <= tol {
             return Ok((v, iteration));
+        }
+        for (k, p) in net.loads().iter().enumerate() {
+            if let (true, true, Some(vt)) =
+                (p.load.is_on(), p.load.model().is_nonlinear(), last_vt[k])
+            {
+                let target = p.characteristic.admittance(vt.norm_sqr().sqrt(), states[k]);
+                y[k] += (target - y[k]) * step;
+            }
         }
         if change.is_finite() && change > last_change {
             step = (step * 0.5).max(0.05);
