@@ -1,6 +1,7 @@
 //! Speed of the engine: a 40-load split-phase job with non-linear loads, a 500-point neutral
 //! sweep of it, and, for comparison, ngspice solving the same network (linearised at the engine's
-//! solution) in batch mode. Targets: solve < 20 µs median, sweep < 10 ms median.
+//! solution) in batch mode; balancing a 42-circuit panel and a diagnosis from readings.
+//! Targets: solve < 20 µs, sweep < 10 ms, balance < 50 ms, diagnosis < 1 ms (medians).
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use serde_json::json;
@@ -74,6 +75,50 @@ fn netlist(net: &Network) -> String {
     n
 }
 
+/// A full 42-position panel of 120 V circuits with household-like ratings and power factors
+/// (a fixed pseudo-random sequence, so every run measures the same panel).
+fn forty_two_circuits() -> tapline_core::validate::Job {
+    let mut x: u64 = 0x5EED_CAFE_F00D_1234;
+    let mut next = move || {
+        x ^= x << 13;
+        x ^= x >> 7;
+        x ^= x << 17;
+        (x % 10_000) as f64 / 10_000.0
+    };
+    let loads: Vec<serde_json::Value> = (0..42)
+        .map(|k| {
+            let watts = 60.0 + 1740.0 * next() * next();
+            let pf = 0.7 + 0.3 * next();
+            json!({"name":format!("circuit {}", k + 1),"connect":if k % 4 < 2 { "L1-N" } else { "L2-N" },
+                   "model":"impedance","watts":watts,"power_factor":pf,"circuit":format!("{}", k + 1),"slot":k + 1})
+        })
+        .collect();
+    let job =
+        json!({"version":1,"name":"42 circuits","system":{"kind":"split-phase"},"loads":loads});
+    tapline_core::load_job(&job.to_string()).expect("valid").1
+}
+
+fn tools(c: &mut Criterion) {
+    let panel = forty_two_circuits();
+    c.bench_function("balance 42 circuits", |b| {
+        b.iter(|| {
+            tapline_core::tools::balance::balance(
+                black_box(&panel),
+                tapline_core::tools::balance::Layout::Standard,
+            )
+        })
+    });
+    let text = json!({"version":1,"system":{"kind":"split-phase"},"readings":[
+        {"label":"baseline","l1_n_v":121.4,"l2_n_v":119.8,"l1_a":12.1,"l2_a":3.0},
+        {"label":"kettle on L1","l1_n_v":114.9,"l2_n_v":124.1,"l1_a":24.4,"l2_a":3.0},
+        {"label":"kettle on L2","l1_n_v":125.6,"l2_n_v":113.0,"l1_a":12.1,"l2_a":15.6}]})
+    .to_string();
+    let readings = tapline_core::tools::diagnose::parse_readings(&text).unwrap();
+    c.bench_function("diagnose from three readings", |b| {
+        b.iter(|| tapline_core::tools::diagnose::diagnose(black_box(&readings)).unwrap())
+    });
+}
+
 fn benches(c: &mut Criterion) {
     let job = forty_load_job();
     let net = Network::new(&job);
@@ -107,5 +152,5 @@ fn benches(c: &mut Criterion) {
     }
 }
 
-criterion_group!(engine, benches);
+criterion_group!(engine, benches, tools);
 criterion_main!(engine);

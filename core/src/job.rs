@@ -23,7 +23,9 @@
 //! actually present), per conductor `length_ft`, `sets` (parallel sets), `conduit` (`pvc`, `aluminum`,
 //! `steel`) and `temperature_c`, `neutral.earth_return_ohms`, and per load `on`, `branch` (a conductor,
 //! one-way length), `input_min_v`/`input_max_v` (electronic supplies), `harmonics` (pairs of order and
-//! fraction of the fundamental current), `circuit`, `movable` and `slot`.
+//! fraction of the fundamental current), `circuit`, `movable`, `slot` and `multiwire` (the id of a
+//! shared-neutral branch circuit listed at the top level under `multiwire`, each with `id`,
+//! `material`, `size`, `length_m` or `length_ft`, and `column_c`, the NEC Table 310.16 column).
 
 use serde::de::DeserializeOwned;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
@@ -108,6 +110,28 @@ pub struct JobFile {
     pub neutral: Raw<NeutralFile>,
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub loads: Raw<Vec<Raw<LoadFile>>>,
+    /// Shared-neutral (multiwire) branch circuits that loads may name.
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub multiwire: Raw<Vec<Raw<MultiwireFile>>>,
+}
+
+/// A shared-neutral (multiwire) branch circuit: its id and its neutral conductor.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct MultiwireFile {
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub id: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub material: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub size: Raw<Value>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub length_m: Raw<f64>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub length_ft: Raw<f64>,
+    /// The NEC Table 310.16 temperature column, °C: 60, 75 or 90 (60 if absent).
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub column_c: Raw<f64>,
 }
 
 /// `system`: what the utility delivers at the service.
@@ -223,6 +247,9 @@ pub struct LoadFile {
     pub movable: Raw<bool>,
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub slot: Raw<u32>,
+    /// The id of the shared-neutral branch circuit this load is on.
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub multiwire: Raw<String>,
 }
 
 /// Why a text could not be read as a job at all (before any field is looked at).

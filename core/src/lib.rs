@@ -5,7 +5,8 @@
 //! cannot be invalid) → [`network`] (the circuit) → [`solve`] (phasor nodal analysis) →
 //! [`classify`] (outcome bands with their sources) → [`report`] (the JSON-facing output).
 //! Supporting modules hold the physics: [`system`], [`transformer`], [`conductors`], [`loads`],
-//! [`library`]; [`whatif`] runs the neutral what-if and sweep.
+//! [`library`]; [`whatif`] runs the neutral what-if and sweep; [`tools`] holds the field tools
+//! (diagnosis from meter readings, panel balancing, shared-neutral circuits).
 //!
 //! This crate does no file, network or browser IO.
 
@@ -20,6 +21,7 @@ pub mod network;
 pub mod report;
 pub mod solve;
 pub mod system;
+pub mod tools;
 pub mod transformer;
 pub mod validate;
 pub mod whatif;

@@ -142,6 +142,7 @@ pub struct Load {
     pub(crate) circuit: Option<String>,
     pub(crate) movable: bool,
     pub(crate) slot: Option<u32>,
+    pub(crate) multiwire: Option<String>,
 }
 
 impl Load {
@@ -182,6 +183,10 @@ impl Load {
     }
     pub fn slot(&self) -> Option<u32> {
         self.slot
+    }
+    /// The shared-neutral branch circuit this load is on, if any.
+    pub fn multiwire(&self) -> Option<&str> {
+        self.multiwire.as_deref()
     }
 
     /// Complex power at rated voltage, S = P + jP·tan θ (VA).

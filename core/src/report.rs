@@ -51,6 +51,9 @@ pub struct Report {
     /// Harmonic currents in the neutral by order, amperes (empty without electronic harmonics).
     pub neutral_harmonics: Vec<HarmonicLine>,
     pub loads: Vec<LoadReport>,
+    /// Shared-neutral (multiwire) branch circuits, when the job lists any.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub multiwire: Vec<crate::tools::multiwire::MultiwireReport>,
     pub worst_outcome: Outcome,
     pub notes: Vec<String>,
 }
@@ -282,6 +285,7 @@ pub fn build(job: &Job, net: &Network, sol: &Solution) -> Report {
             })
             .collect(),
         loads,
+        multiwire: crate::tools::multiwire::check(job, sol),
         worst_outcome,
         notes,
     }

@@ -66,6 +66,19 @@ pub struct Job {
     pub(crate) service: Service,
     pub(crate) neutral: NeutralState,
     pub(crate) loads: Vec<Load>,
+    pub(crate) multiwire: Vec<Multiwire>,
+}
+
+/// A validated shared-neutral branch circuit.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Multiwire {
+    pub id: String,
+    pub material: Material,
+    /// The size's label (`12 AWG`).
+    pub size_label: String,
+    /// NEC Table 310.16 ampacity at the chosen column; `None` for sizes the table lacks.
+    pub ampacity_a: Option<f64>,
+    pub column_c: f64,
 }
 
 impl Job {
@@ -86,6 +99,9 @@ impl Job {
     }
     pub fn loads(&self) -> &[Load] {
         &self.loads
+    }
+    pub fn multiwire(&self) -> &[Multiwire] {
+        &self.multiwire
     }
 
     /// The same job with another neutral state (for the what-if and the sweep).
@@ -114,14 +130,14 @@ const MAX_PRIMARY_V: f64 = 100_000.0;
 const MAX_LENGTH_M: f64 = 100_000.0;
 const MAX_OHMS: f64 = 1_000_000.0;
 
-/// Collects problems while walking the file.
-struct Checker {
-    problems: Vec<Problem>,
+/// Collects problems while walking a file (jobs here; readings in [`crate::tools::diagnose`]).
+pub(crate) struct Checker {
+    pub(crate) problems: Vec<Problem>,
 }
 
 /// What a number must be.
 #[derive(Clone, Copy)]
-enum Rule {
+pub(crate) enum Rule {
     /// Finite, > 0 and ≤ max.
     Positive(f64),
     /// Finite, ≥ 0 and ≤ max.
@@ -131,14 +147,14 @@ enum Rule {
 }
 
 impl Checker {
-    fn fail(&mut self, path: &str, message: impl Into<String>) {
+    pub(crate) fn fail(&mut self, path: &str, message: impl Into<String>) {
         self.problems.push(Problem {
             path: path.to_string(),
             message: message.into(),
         });
     }
 
-    fn number(&mut self, raw: &Raw<f64>, path: &str, rule: Rule) -> Option<f64> {
+    pub(crate) fn number(&mut self, raw: &Raw<f64>, path: &str, rule: Rule) -> Option<f64> {
         let v = match raw {
             Raw::Absent => return None,
             Raw::Invalid(_) => {
@@ -161,7 +177,12 @@ impl Checker {
         }
     }
 
-    fn required_number(&mut self, raw: &Raw<f64>, path: &str, rule: Rule) -> Option<f64> {
+    pub(crate) fn required_number(
+        &mut self,
+        raw: &Raw<f64>,
+        path: &str,
+        rule: Rule,
+    ) -> Option<f64> {
         if raw.is_absent() {
             self.fail(
                 path,
@@ -175,7 +196,7 @@ impl Checker {
         self.number(raw, path, rule)
     }
 
-    fn text<'a>(&mut self, raw: &'a Raw<String>, path: &str) -> Option<&'a str> {
+    pub(crate) fn text<'a>(&mut self, raw: &'a Raw<String>, path: &str) -> Option<&'a str> {
         match raw {
             Raw::Absent => None,
             Raw::Invalid(_) => {
@@ -186,7 +207,7 @@ impl Checker {
         }
     }
 
-    fn flag(&mut self, raw: &Raw<bool>, path: &str) -> Option<bool> {
+    pub(crate) fn flag(&mut self, raw: &Raw<bool>, path: &str) -> Option<bool> {
         match raw {
             Raw::Absent => None,
             Raw::Invalid(_) => {
@@ -197,7 +218,7 @@ impl Checker {
         }
     }
 
-    fn object<'a, T>(&mut self, raw: &'a Raw<T>, path: &str) -> Option<&'a T> {
+    pub(crate) fn object<'a, T>(&mut self, raw: &'a Raw<T>, path: &str) -> Option<&'a T> {
         match raw {
             Raw::Absent => None,
             Raw::Invalid(_) => {
@@ -258,6 +279,7 @@ pub fn validate(file: &JobFile) -> Result<Job, Vec<Problem>> {
     let service = system.map(|s| validate_service(&mut c, file, &s));
     let neutral = validate_neutral(&mut c, file);
     let loads = system.map(|s| validate_loads(&mut c, file, &s));
+    let multiwire = validate_multiwire(&mut c, file, loads.as_deref().unwrap_or(&[]));
 
     match (system, service, loads) {
         (Some(system), Some(service), Some(loads)) if c.problems.is_empty() => Ok(Job {
@@ -267,9 +289,21 @@ pub fn validate(file: &JobFile) -> Result<Job, Vec<Problem>> {
             service,
             neutral,
             loads,
+            multiwire,
         }),
         _ => Err(c.problems),
     }
+}
+
+pub(crate) fn validate_system_raw(
+    c: &mut Checker,
+    system: &Raw<crate::job::SystemFile>,
+) -> Option<System> {
+    let file = JobFile {
+        system: system.clone(),
+        ..JobFile::default()
+    };
+    validate_system(c, &file)
 }
 
 fn validate_system(c: &mut Checker, file: &JobFile) -> Option<System> {
@@ -728,6 +762,9 @@ fn validate_load(
         }
     };
     let _ = c.text(&f.appliance, &p("appliance"));
+    let multiwire = c
+        .text(&f.multiwire, &p("multiwire"))
+        .map(|s| s.trim().to_string());
     let branch = match &f.branch {
         Raw::Absent => Some(None),
         raw => c
@@ -825,5 +862,87 @@ fn validate_load(
         circuit,
         movable,
         slot,
+        multiwire,
     })
+}
+
+fn validate_multiwire(c: &mut Checker, file: &JobFile, loads: &[Load]) -> Vec<Multiwire> {
+    let list = match &file.multiwire {
+        Raw::Absent => Vec::new(),
+        Raw::Invalid(_) => {
+            c.fail("multiwire", "must be a list of shared-neutral circuits");
+            Vec::new()
+        }
+        Raw::Given(l) => l.clone(),
+    };
+    let mut out: Vec<Multiwire> = Vec::new();
+    for (i, raw) in list.iter().enumerate() {
+        let path = |f: &str| format!("multiwire[{i}].{f}");
+        let Some(m) = c.object(raw, &format!("multiwire[{i}]")) else {
+            continue;
+        };
+        let id = match c.text(&m.id, &path("id")) {
+            Some(id) if !id.trim().is_empty() => Some(id.trim().to_string()),
+            _ => {
+                c.fail(&path("id"), "is required: a name the loads refer to");
+                None
+            }
+        };
+        let material = match c.text(&m.material, &path("material")) {
+            Some(t) => Material::parse(t).or_else(|| {
+                c.fail(&path("material"), "must be cu or al");
+                None
+            }),
+            None => m.material.is_absent().then_some(Material::Copper),
+        };
+        let size = match &m.size {
+            Raw::Given(Value::String(s)) => Size::parse(s),
+            Raw::Given(Value::Number(n)) => Size::parse(&n.to_string()),
+            _ => None,
+        };
+        let size = match size {
+            Some(Size::Awg(row)) => Some(row),
+            _ => {
+                c.fail(&path("size"), "must be an AWG size such as 14, 12 or 10");
+                None
+            }
+        };
+        let column = c
+            .number(&m.column_c, &path("column_c"), Rule::Between(60.0, 90.0))
+            .or(m.column_c.is_absent().then_some(60.0));
+        if let Some(col) = column {
+            if ![60.0, 75.0, 90.0].contains(&col) {
+                c.fail(&path("column_c"), "must be 60, 75 or 90");
+            }
+        }
+        if let (Some(id), Some(material), Some(row), Some(col)) = (id, material, size, column) {
+            if out.iter().any(|o| o.id == id) {
+                c.fail(&path("id"), format!("{id:?} is used twice"));
+                continue;
+            }
+            out.push(Multiwire {
+                id,
+                material,
+                size_label: Size::Awg(row).label(),
+                ampacity_a: crate::conductors::ampacity::ampacity(material, row.size, col),
+                column_c: col,
+            });
+        }
+    }
+    for (i, load) in loads.iter().enumerate() {
+        if let Some(id) = load.multiwire() {
+            if !out.iter().any(|m| m.id == id) {
+                c.fail(
+                    &format!("loads[{i}].multiwire"),
+                    format!("{id:?} is not listed under multiwire"),
+                );
+            } else if matches!(load.connection(), Connection::Across(..)) {
+                c.fail(
+                    &format!("loads[{i}].multiwire"),
+                    "a load across two legs does not use the shared neutral",
+                );
+            }
+        }
+    }
+    out
 }

@@ -234,3 +234,55 @@ fn whatif_library_and_demo() {
     );
     assert_eq!(solved.status.code(), Some(0));
 }
+
+#[test]
+fn diagnose_prints_resistances_and_a_verdict() {
+    let out = tapline(&["diagnose", &data("readings-loose.json")], None);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let d = stdout_json(&out);
+    assert!(d["neutral_ohms"].as_f64().unwrap() > 0.1);
+    assert!(d["hot_ohms"].as_f64().unwrap() > 0.0);
+    assert_eq!(d["verdict"], "suspect");
+    let bad = tapline(
+        &["diagnose", "-"],
+        Some(
+            r#"{"system":{"kind":"split-phase"},"readings":[{"l1_n_v":120,"l2_n_v":120,"l1_a":-1,"l2_a":0}]}"#,
+        ),
+    );
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(bad.stdout.is_empty());
+    assert!(
+        String::from_utf8_lossy(&bad.stderr).contains("readings[0].l1_a: must be a number from 0")
+    );
+}
+
+#[test]
+fn balance_prints_before_after_and_moves() {
+    let out = tapline(&["balance", &data("panel.json")], None);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let b = stdout_json(&out);
+    let before = b["before"]["neutral_current_a"].as_f64().unwrap();
+    let after = b["after"]["neutral_current_a"].as_f64().unwrap();
+    assert!(after < before, "{after} vs {before}");
+    let moves = b["moves"].as_array().unwrap();
+    assert!(!moves.is_empty());
+    for m in moves {
+        assert!(m["circuit"].is_string() && m["from"].is_string() && m["to"].is_string());
+    }
+    assert_eq!(
+        tapline(&["balance", &data("panel.json"), "--flipped"], None)
+            .status
+            .code(),
+        Some(0)
+    );
+}

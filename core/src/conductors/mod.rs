@@ -4,6 +4,7 @@
 //! at the system frequency. A circuit's loop impedance is the sum of its outgoing and return
 //! conductors.
 
+pub mod ampacity;
 pub mod drop;
 pub mod tables;
 

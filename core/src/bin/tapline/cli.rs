@@ -3,6 +3,7 @@
 
 use serde::Serialize;
 use std::io::Read;
+use tapline_core::tools::{balance, diagnose};
 use tapline_core::whatif::{sweep, sweep_csv, sweep_points, what_if};
 use tapline_core::{library, load_job, report, EngineError};
 
@@ -20,6 +21,10 @@ usage:
   tapline sweep JOB.json [--csv] [--points N]
                                   every appliance's voltage as the neutral resistance goes from
                                   0 to open (JSON, or CSV with --csv; N from 3 to 5000, default 200)
+  tapline diagnose READINGS.json  neutral and hot resistance from meter readings, with a verdict (JSON)
+  tapline balance JOB.json [--flipped]
+                                  which breakers to swap so the neutral carries the least current
+                                  (JSON); --flipped when position 1 is on L2 rather than L1
   tapline library                 typical appliances (JSON)
   tapline demo                    the demo job (JSON)
 
@@ -86,6 +91,24 @@ pub fn run(args: Vec<String>) -> Result<String, Failure> {
             } else {
                 json(&what_if(&job).map_err(|e| engine(EngineError::Solve(e)))?)
             }
+        }
+        "diagnose" => {
+            let path = single_path(command, rest)?;
+            let readings =
+                diagnose::parse_readings(&read_input(path)?).map_err(|e| bad(e.to_string()))?;
+            json(&diagnose::diagnose(&readings).map_err(|e| bad(e.to_string()))?)
+        }
+        "balance" => {
+            let flipped = rest.iter().any(|a| a == "--flipped");
+            let files: Vec<String> = rest.iter().filter(|a| *a != "--flipped").cloned().collect();
+            let path = single_path(command, &files)?;
+            let (_, job) = load_job(&read_input(path)?).map_err(engine)?;
+            let layout = if flipped {
+                balance::Layout::Flipped
+            } else {
+                balance::Layout::Standard
+            };
+            json(&balance::balance(&job, layout))
         }
         "sweep" => {
             let mut path = None;
@@ -191,7 +214,9 @@ mod tests {
     #[test]
     fn help_lists_every_command() {
         let out = run(vec!["--help".to_string()]).ok().unwrap();
-        for c in ["solve", "whatif", "sweep", "library", "demo"] {
+        for c in [
+            "solve", "whatif", "sweep", "diagnose", "balance", "library", "demo",
+        ] {
             assert!(out.contains(&format!("tapline {c}")), "{c}");
         }
     }

@@ -1,0 +1,484 @@
+//! Loose-neutral diagnosis from meter readings on a split-phase service.
+//!
+//! The electrician reads L1-N, L2-N (and optionally L1-L2) and both leg currents, switches a known
+//! load on one leg, and reads again. With the hot legs' resistance R_h (each) and the service
+//! neutral's resistance R_n, and the source's open-circuit half voltages E₁ and E₂, every reading
+//! obeys (magnitudes, loads near unity power factor, currents in phase with their leg):
+//!
+//! - V₁ = E₁ − R_h·I₁ − R_n·(I₁ − I₂)
+//! - V₂ = E₂ − R_h·I₂ + R_n·(I₁ − I₂)
+//! - V₁₂ = E₁ + E₂ − R_h·(I₁ + I₂)
+//!
+//! Loading a leg lowers its own voltage through the hot and the neutral and raises the other leg
+//! by the neutral's drop (Ohm's law and Kirchhoff's laws on the three-wire circuit; common
+//! practice). The four unknowns are fitted by least squares; their uncertainty follows from the
+//! meters' resolution (σ = resolution/√12 for a quantised reading) or from the fit's residuals,
+//! whichever is larger.
+
+use crate::job::{Raw, SystemFile};
+use crate::system::SystemKind;
+use crate::validate::{validate_system_raw, Checker, Problem, Rule};
+use serde::{Deserialize, Serialize};
+
+/// Readings format version.
+pub const READINGS_VERSION: u32 = 1;
+
+/// Neutral resistance thresholds, ohms (common practice, no source): up to 0.12 Ω a 10 A
+/// imbalance moves the neutral by at most 1.2 V (1 % of 120 V); above 0.6 Ω it moves by more than
+/// 6 V (5 %), enough to damage appliances when the imbalance grows.
+pub const HEALTHY_MAX_OHMS: f64 = 0.12;
+/// See [`HEALTHY_MAX_OHMS`].
+pub const SUSPECT_MAX_OHMS: f64 = 0.6;
+/// The least change of a leg current between readings that makes the fit meaningful, amperes.
+pub const MIN_CURRENT_CHANGE_A: f64 = 0.5;
+
+/// The readings file, forgiving like the job file.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct ReadingsFile {
+    pub version: Raw<u32>,
+    pub system: Raw<SystemFile>,
+    pub meter: Raw<MeterFile>,
+    pub readings: Raw<Vec<Raw<ReadingFile>>>,
+}
+
+/// The meters' resolution.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct MeterFile {
+    pub volts_resolution: Raw<f64>,
+    pub amps_resolution: Raw<f64>,
+}
+
+/// One set of readings.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct ReadingFile {
+    pub label: Raw<String>,
+    /// `panel` (default) or `meter`: where the voltages were read.
+    pub at: Raw<String>,
+    pub l1_n_v: Raw<f64>,
+    pub l2_n_v: Raw<f64>,
+    pub l1_l2_v: Raw<f64>,
+    pub l1_a: Raw<f64>,
+    pub l2_a: Raw<f64>,
+}
+
+/// Where a reading was taken.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Place {
+    Panel,
+    Meter,
+}
+
+/// A validated reading.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Reading {
+    pub label: String,
+    pub at: Place,
+    pub v1: f64,
+    pub v2: f64,
+    pub v12: Option<f64>,
+    pub i1: f64,
+    pub i2: f64,
+}
+
+/// Validated readings.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Readings {
+    pub readings: Vec<Reading>,
+    pub volts_resolution: f64,
+    pub amps_resolution: f64,
+}
+
+/// The verdict on the neutral.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Verdict {
+    Healthy,
+    Suspect,
+    Dangerous,
+}
+
+/// One fitted location (all readings at the panel, or all at the meter).
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Fit {
+    pub neutral_ohms: f64,
+    /// Two standard uncertainties (about 95 %), ohms.
+    pub neutral_ohms_uncertainty: f64,
+    pub hot_ohms: f64,
+    pub hot_ohms_uncertainty: f64,
+    pub source_v: [f64; 2],
+    pub residual_rms_v: f64,
+    pub readings_used: usize,
+}
+
+/// The diagnosis.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Diagnosis {
+    pub neutral_ohms: f64,
+    pub neutral_ohms_uncertainty: f64,
+    pub hot_ohms: f64,
+    pub hot_ohms_uncertainty: f64,
+    pub verdict: Verdict,
+    pub reason: String,
+    pub thresholds_ohms: [f64; 2],
+    pub thresholds_source: &'static str,
+    pub at_panel: Option<Fit>,
+    pub at_meter: Option<Fit>,
+    /// `utility side`, `building side` or `unknown`.
+    pub likely_location: &'static str,
+    pub location_reason: String,
+    pub cautions: Vec<&'static str>,
+}
+
+/// Why readings could not be used.
+#[derive(Clone, Debug, PartialEq)]
+pub enum DiagnoseError {
+    Invalid(Vec<Problem>),
+    /// The equations have no unique solution (the readings do not vary enough).
+    Degenerate(String),
+}
+
+impl std::fmt::Display for DiagnoseError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            DiagnoseError::Invalid(ps) => {
+                let lines: Vec<String> = ps.iter().map(|p| p.to_string()).collect();
+                f.write_str(&lines.join("\n"))
+            }
+            DiagnoseError::Degenerate(m) => f.write_str(m),
+        }
+    }
+}
+
+impl std::error::Error for DiagnoseError {}
+
+/// Parses and validates a readings file.
+///
+/// # Errors
+/// Every problem, with its JSON path (`readings[1].l2_n_v`).
+pub fn parse_readings(text: &str) -> Result<Readings, DiagnoseError> {
+    let one = |path: &str, message: String| {
+        DiagnoseError::Invalid(vec![Problem {
+            path: path.to_string(),
+            message,
+        }])
+    };
+    let value: serde_json::Value = serde_json::from_str(text)
+        .map_err(|e| one("readings file", format!("not valid JSON ({e})")))?;
+    if !value.is_object() {
+        return Err(one("readings file", "must be a JSON object".to_string()));
+    }
+    let file: ReadingsFile =
+        serde_json::from_value(value).map_err(|e| one("readings file", e.to_string()))?;
+    validate_readings(&file)
+}
+
+/// Validates a readings file.
+///
+/// # Errors
+/// Every problem found.
+pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError> {
+    let mut c = Checker {
+        problems: Vec::new(),
+    };
+    match &file.version {
+        Raw::Absent => {}
+        Raw::Given(v) if *v == READINGS_VERSION => {}
+        _ => c.fail("version", format!("must be {READINGS_VERSION}")),
+    }
+    if file.system.is_absent() {
+        c.fail("system", "is required: an object with kind split-phase");
+    } else if let Some(system) = validate_system_raw(&mut c, &file.system) {
+        if system.kind() != SystemKind::SplitPhase {
+            c.fail(
+                "system.kind",
+                "diagnosis from readings supports split-phase services only",
+            );
+        }
+    }
+    let meter = c.object(&file.meter, "meter").cloned().unwrap_or_default();
+    let vres = c
+        .number(
+            &meter.volts_resolution,
+            "meter.volts_resolution",
+            Rule::Positive(10.0),
+        )
+        .unwrap_or(0.1);
+    let ares = c
+        .number(
+            &meter.amps_resolution,
+            "meter.amps_resolution",
+            Rule::Positive(10.0),
+        )
+        .unwrap_or(0.1);
+    let list = match &file.readings {
+        Raw::Given(l) => l.clone(),
+        Raw::Absent => {
+            c.fail("readings", "is required: at least two sets of readings");
+            Vec::new()
+        }
+        Raw::Invalid(_) => {
+            c.fail("readings", "must be a list of readings");
+            Vec::new()
+        }
+    };
+    let mut readings = Vec::new();
+    for (i, raw) in list.iter().enumerate() {
+        let path = |f: &str| format!("readings[{i}].{f}");
+        let Some(r) = c.object(raw, &format!("readings[{i}]")) else {
+            continue;
+        };
+        let v1 = c.required_number(&r.l1_n_v, &path("l1_n_v"), Rule::Positive(1000.0));
+        let v2 = c.required_number(&r.l2_n_v, &path("l2_n_v"), Rule::Positive(1000.0));
+        let v12 = c.number(&r.l1_l2_v, &path("l1_l2_v"), Rule::Positive(2000.0));
+        let i1 = c.required_number(&r.l1_a, &path("l1_a"), Rule::NonNegative(10_000.0));
+        let i2 = c.required_number(&r.l2_a, &path("l2_a"), Rule::NonNegative(10_000.0));
+        let at = match c.text(&r.at, &path("at")) {
+            None | Some("panel") => Some(Place::Panel),
+            Some("meter") => Some(Place::Meter),
+            Some(other) => {
+                c.fail(
+                    &path("at"),
+                    format!("must be panel or meter (got {other:?})"),
+                );
+                None
+            }
+        };
+        let label = c.text(&r.label, &path("label")).unwrap_or("").to_string();
+        if let (Some(v1), Some(v2), Some(i1), Some(i2), Some(at)) = (v1, v2, i1, i2, at) {
+            readings.push(Reading {
+                label: if label.is_empty() {
+                    format!("reading {}", i + 1)
+                } else {
+                    label
+                },
+                at,
+                v1,
+                v2,
+                v12,
+                i1,
+                i2,
+            });
+        }
+    }
+    if c.problems.is_empty() {
+        for place in [Place::Panel, Place::Meter] {
+            let here: Vec<&Reading> = readings.iter().filter(|r| r.at == place).collect();
+            if here.is_empty() {
+                continue;
+            }
+            let name = match place {
+                Place::Panel => "panel",
+                Place::Meter => "meter",
+            };
+            if here.len() < 2 {
+                c.fail("readings", format!("need at least two readings at the {name} (one before and one after switching a load)"));
+                continue;
+            }
+            let spread = |f: fn(&Reading) -> f64| {
+                let lo = here.iter().map(|r| f(r)).fold(f64::INFINITY, f64::min);
+                let hi = here.iter().map(|r| f(r)).fold(f64::NEG_INFINITY, f64::max);
+                hi - lo
+            };
+            if spread(|r| r.i1).max(spread(|r| r.i2)) < MIN_CURRENT_CHANGE_A {
+                c.fail(
+                    "readings",
+                    format!("the readings at the {name} show no change in leg current: switch a known load on one leg (at least {MIN_CURRENT_CHANGE_A} A) between readings"),
+                );
+            }
+        }
+    }
+    if c.problems.is_empty() {
+        Ok(Readings {
+            readings,
+            volts_resolution: vres,
+            amps_resolution: ares,
+        })
+    } else {
+        Err(DiagnoseError::Invalid(c.problems))
+    }
+}
+
+/// Solves the 4 × 4 normal equations by Gaussian elimination with partial pivoting; returns the
+/// solution and the inverse's diagonal (for the uncertainties), or `None` when singular.
+fn solve4(ata: [[f64; 4]; 4], atb: [f64; 4]) -> Option<([f64; 4], [f64; 4])> {
+    // Augment with the identity to get the inverse's diagonal at the same time.
+    let mut m = [[0.0; 9]; 4];
+    for i in 0..4 {
+        m[i][..4].copy_from_slice(&ata[i]);
+        m[i][4] = atb[i];
+        m[i][5 + i] = 1.0;
+    }
+    let scale = ata.iter().flatten().fold(0.0f64, |a, b| a.max(b.abs()));
+    for col in 0..4 {
+        let p = (col..4).max_by(|&a, &b| m[a][col].abs().total_cmp(&m[b][col].abs()))?;
+        if m[p][col].abs() <= 1e-12 * scale {
+            return None;
+        }
+        m.swap(col, p);
+        let pivot = m[col][col];
+        for v in m[col].iter_mut() {
+            *v /= pivot;
+        }
+        for row in 0..4 {
+            if row != col {
+                let f = m[row][col];
+                let src = m[col];
+                for (dst, s) in m[row].iter_mut().zip(src) {
+                    *dst -= f * s;
+                }
+            }
+        }
+    }
+    let x = [m[0][4], m[1][4], m[2][4], m[3][4]];
+    let diag = [m[0][5], m[1][6], m[2][7], m[3][8]];
+    Some((x, diag))
+}
+
+/// Fits E₁, E₂, R_h and R_n to one place's readings.
+fn fit(readings: &[&Reading], vres: f64, ares: f64) -> Result<Fit, DiagnoseError> {
+    let mut rows: Vec<([f64; 4], f64)> = Vec::new();
+    for r in readings {
+        let d = r.i1 - r.i2;
+        rows.push(([1.0, 0.0, -r.i1, -d], r.v1));
+        rows.push(([0.0, 1.0, -r.i2, d], r.v2));
+        if let Some(v12) = r.v12 {
+            rows.push(([1.0, 1.0, -(r.i1 + r.i2), 0.0], v12));
+        }
+    }
+    let mut ata = [[0.0; 4]; 4];
+    let mut atb = [0.0; 4];
+    for (a, b) in &rows {
+        for i in 0..4 {
+            atb[i] += a[i] * b;
+            for j in 0..4 {
+                ata[i][j] += a[i] * a[j];
+            }
+        }
+    }
+    let (x, inv_diag) = solve4(ata, atb).ok_or_else(|| {
+        DiagnoseError::Degenerate("the readings do not separate the hot and neutral resistances: change the load on one leg by a few amperes between readings".to_string())
+    })?;
+    let rss: f64 = rows
+        .iter()
+        .map(|(a, b)| {
+            let pred: f64 = a.iter().zip(&x).map(|(ai, xi)| ai * xi).sum();
+            (b - pred).powi(2)
+        })
+        .sum();
+    let dof = rows.len().saturating_sub(4);
+    // Quantisation noise of a reading: resolution/√12 (common practice). Current errors enter
+    // through the resistances they multiply.
+    let sigma_meter_sq = (vres * vres + (x[2] * x[2] + x[3] * x[3]) * ares * ares) / 12.0;
+    let sigma_sq = if dof > 0 {
+        sigma_meter_sq.max(rss / dof as f64)
+    } else {
+        sigma_meter_sq
+    };
+    Ok(Fit {
+        neutral_ohms: x[3],
+        neutral_ohms_uncertainty: 2.0 * (sigma_sq * inv_diag[3].max(0.0)).sqrt(),
+        hot_ohms: x[2],
+        hot_ohms_uncertainty: 2.0 * (sigma_sq * inv_diag[2].max(0.0)).sqrt(),
+        source_v: [x[0], x[1]],
+        residual_rms_v: (rss / rows.len() as f64).sqrt(),
+        readings_used: readings.len(),
+    })
+}
+
+/// The verdict for a neutral resistance, with its one-line reason.
+pub fn verdict_for(ohms: f64, uncertainty: f64) -> (Verdict, String) {
+    let shift = ohms * 10.0;
+    let v = if ohms <= HEALTHY_MAX_OHMS {
+        Verdict::Healthy
+    } else if ohms <= SUSPECT_MAX_OHMS {
+        Verdict::Suspect
+    } else {
+        Verdict::Dangerous
+    };
+    let what = match v {
+        Verdict::Healthy => "within what a sound service neutral shows",
+        Verdict::Suspect => {
+            "higher than a sound neutral: check and tighten the neutral connections"
+        }
+        Verdict::Dangerous => {
+            "a loose or failing neutral: appliances are at risk; treat it as urgent"
+        }
+    };
+    (
+        v,
+        format!("neutral {ohms:.3} Ω ± {uncertainty:.3} Ω moves the neutral about {shift:.1} V per 10 A of imbalance: {what}"),
+    )
+}
+
+/// Diagnoses validated readings.
+///
+/// # Errors
+/// [`DiagnoseError::Degenerate`] when the readings cannot separate the resistances.
+pub fn diagnose(r: &Readings) -> Result<Diagnosis, DiagnoseError> {
+    let at =
+        |place: Place| -> Vec<&Reading> { r.readings.iter().filter(|x| x.at == place).collect() };
+    let panel = at(Place::Panel);
+    let meter = at(Place::Meter);
+    let at_panel = if panel.len() >= 2 {
+        Some(fit(&panel, r.volts_resolution, r.amps_resolution)?)
+    } else {
+        None
+    };
+    let at_meter = if meter.len() >= 2 {
+        Some(fit(&meter, r.volts_resolution, r.amps_resolution)?)
+    } else {
+        None
+    };
+    // The verdict rests on the whole path to where the customer's loads are: the panel when read
+    // there, else the meter.
+    let main = at_panel
+        .as_ref()
+        .or(at_meter.as_ref())
+        .ok_or_else(|| DiagnoseError::Degenerate("no readings".into()))?;
+    let (verdict, reason) = verdict_for(main.neutral_ohms, main.neutral_ohms_uncertainty);
+    let (likely_location, location_reason) = match (&at_meter, &at_panel) {
+        (Some(m), Some(p)) => {
+            let building = p.neutral_ohms - m.neutral_ohms;
+            if verdict == Verdict::Healthy {
+                ("unknown", "the neutral reads healthy from both places".to_string())
+            } else if m.neutral_ohms > building {
+                (
+                    "utility side",
+                    format!("{:.3} Ω of the neutral's {:.3} Ω is before the meter (transformer, service drop, meter base): call the utility", m.neutral_ohms, p.neutral_ohms),
+                )
+            } else {
+                (
+                    "building side",
+                    format!("{building:.3} Ω of the neutral's {:.3} Ω is between the meter and the panel (service entrance conductors, panel neutral bar)", p.neutral_ohms),
+                )
+            }
+        }
+        _ => (
+            "unknown",
+            "take the same readings at the meter base and at the panel to tell the utility side from the building side".to_string(),
+        ),
+    };
+    Ok(Diagnosis {
+        neutral_ohms: main.neutral_ohms,
+        neutral_ohms_uncertainty: main.neutral_ohms_uncertainty,
+        hot_ohms: main.hot_ohms,
+        hot_ohms_uncertainty: main.hot_ohms_uncertainty,
+        verdict,
+        reason,
+        thresholds_ohms: [HEALTHY_MAX_OHMS, SUSPECT_MAX_OHMS],
+        thresholds_source: "common practice, no source: 1 % and 5 % of 120 V per 10 A of imbalance",
+        at_panel,
+        at_meter,
+        likely_location,
+        location_reason,
+        cautions: vec![
+            "Readings are taken on energized equipment: qualified persons only, with the protective equipment the task calls for.",
+            "A loose or open neutral can put dangerous voltage on neutral and grounded parts; keep others clear.",
+            "Confirm any finding with a second measurement before acting on it.",
+        ],
+    })
+}
