@@ -5,9 +5,12 @@
 use serde_json::Value;
 use tapline_core::conductors::FEET_PER_METRE;
 use tapline_core::job::{
-    ConductorFile, JobFile, LoadFile, NeutralFile, Raw, SystemFile, TransformerFile, JOB_VERSION,
+    ConductorFile, JobFile, LoadFile, MultiwireFile, NeutralFile, Raw, SystemFile, TransformerFile,
+    JOB_VERSION,
 };
 use tapline_core::library::{Appliance, Hookup};
+use tapline_core::tools::balance::Move;
+use tapline_core::tools::diagnose::{ReadingFile, ReadingsFile};
 use tapline_core::validate::Problem;
 
 /// Reads a number typed by a user. Empty text is "absent"; a comma decimal separator is accepted;
@@ -561,7 +564,154 @@ pub fn set_load_field(job: &mut JobFile, i: usize, field: &str, text: &str) {
         "power_factor" => load.power_factor = number_from_text(text),
         "rated_v" => load.rated_v = number_from_text(text),
         "on" => load.on = Raw::Given(text == "true"),
+        "multiwire" => {
+            load.multiwire = if text.trim().is_empty() {
+                Raw::Absent
+            } else {
+                Raw::Given(text.trim().to_string())
+            }
+        }
         _ => {}
+    }
+}
+
+/// The circuit a load belongs to, as the balancing tool names it: its `circuit`, else its name.
+pub fn circuit_of(load: &LoadFile) -> String {
+    match load.circuit.given() {
+        Some(c) => c.trim().to_string(),
+        None => text_of(&load.name).trim().to_string(),
+    }
+}
+
+/// Applies balancing moves to the job: every load of a moved circuit goes to its new leg.
+pub fn apply_moves(job: &mut JobFile, moves: &[Move]) {
+    if let Raw::Given(loads) = &mut job.loads {
+        for raw in loads.iter_mut() {
+            if let Raw::Given(load) = raw {
+                if let Some(m) = moves.iter().find(|m| m.circuit == circuit_of(load)) {
+                    load.connect = Raw::Given(format!("{}-N", m.to));
+                }
+            }
+        }
+    }
+}
+
+/// The shared-neutral circuits as given.
+pub fn multiwire_list(job: &JobFile) -> Vec<MultiwireFile> {
+    job.multiwire
+        .given()
+        .map(|l| {
+            l.iter()
+                .map(|r| r.given().cloned().unwrap_or_default())
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+fn multiwire_mut(job: &mut JobFile) -> &mut Vec<Raw<MultiwireFile>> {
+    if job.multiwire.given().is_none() {
+        job.multiwire = Raw::Given(Vec::new());
+    }
+    let Raw::Given(l) = &mut job.multiwire else {
+        unreachable!("set just above")
+    };
+    l
+}
+
+/// Adds a shared-neutral circuit (12 AWG copper, 60 °C column) with the next free letter as id.
+pub fn add_multiwire(job: &mut JobFile) {
+    let used: Vec<String> = multiwire_list(job).iter().map(|m| text_of(&m.id)).collect();
+    let id = ('A'..='Z')
+        .map(String::from)
+        .find(|c| !used.contains(c))
+        .unwrap_or_else(|| "MW".to_string());
+    multiwire_mut(job).push(Raw::Given(MultiwireFile {
+        id: Raw::Given(id),
+        material: Raw::Given("cu".to_string()),
+        size: Raw::Given(Value::String("12".to_string())),
+        column_c: Raw::Given(60.0),
+        ..MultiwireFile::default()
+    }));
+}
+
+/// Removes shared-neutral circuit `i` and clears it from the loads that named it.
+pub fn remove_multiwire(job: &mut JobFile, i: usize) {
+    let list = multiwire_mut(job);
+    if i >= list.len() {
+        return;
+    }
+    let id = list
+        .remove(i)
+        .given()
+        .map(|m| text_of(&m.id))
+        .unwrap_or_default();
+    if let Raw::Given(loads) = &mut job.loads {
+        for raw in loads.iter_mut() {
+            if let Raw::Given(load) = raw {
+                if load.multiwire.given().map(|s| s.as_str()) == Some(id.as_str()) {
+                    load.multiwire = Raw::Absent;
+                }
+            }
+        }
+    }
+}
+
+/// Edits a shared-neutral circuit's `id`, `material`, `size` (text) or `column_c` (number).
+pub fn set_multiwire_field(job: &mut JobFile, i: usize, field: &str, text: &str) {
+    let Some(Raw::Given(m)) = multiwire_mut(job).get_mut(i) else {
+        return;
+    };
+    match field {
+        "id" => m.id = Raw::Given(text.trim().to_string()),
+        "material" => m.material = Raw::Given(text.to_string()),
+        "size" => m.size = Raw::Given(Value::String(text.to_string())),
+        "column_c" => m.column_c = number_from_text(text),
+        _ => {}
+    }
+}
+
+/// One set of meter readings as typed.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct ReadingForm {
+    pub label: String,
+    pub at: String,
+    pub l1_n_v: String,
+    pub l2_n_v: String,
+    pub l1_a: String,
+    pub l2_a: String,
+}
+
+/// The readings file for the diagnosis, from the forms (split-phase at 120 V).
+pub fn readings_file(forms: &[ReadingForm]) -> ReadingsFile {
+    ReadingsFile {
+        version: Raw::Given(1),
+        system: Raw::Given(SystemFile {
+            kind: Raw::Given("split-phase".to_string()),
+            volts_to_neutral: Raw::Given(120.0),
+            frequency_hz: Raw::Given(60.0),
+            phases: Raw::Absent,
+        }),
+        meter: Raw::Absent,
+        readings: Raw::Given(
+            forms
+                .iter()
+                .map(|f| {
+                    Raw::Given(ReadingFile {
+                        label: Raw::Given(f.label.clone()),
+                        at: Raw::Given(if f.at.is_empty() {
+                            "panel".to_string()
+                        } else {
+                            f.at.clone()
+                        }),
+                        l1_n_v: number_from_text(&f.l1_n_v),
+                        l2_n_v: number_from_text(&f.l2_n_v),
+                        l1_l2_v: Raw::Absent,
+                        l1_a: number_from_text(&f.l1_a),
+                        l2_a: number_from_text(&f.l2_a),
+                    })
+                })
+                .collect(),
+        ),
     }
 }
 
@@ -689,6 +839,67 @@ mod tests {
             watts_by_group(&job),
             vec![("L1".to_string(), 1000.0), ("L2".to_string(), 1000.0)]
         );
+    }
+
+    #[test]
+    fn balancing_moves_apply_to_every_load_of_a_circuit() {
+        let mut job = new_job("Test");
+        add_custom(&mut job);
+        add_custom(&mut job);
+        if let Raw::Given(loads) = &mut job.loads {
+            for l in loads.iter_mut() {
+                if let Raw::Given(l) = l {
+                    l.circuit = Raw::Given("7".to_string());
+                }
+            }
+        }
+        let m = Move {
+            circuit: "7".to_string(),
+            from: "L1",
+            to: "L2",
+            slot: None,
+        };
+        apply_moves(&mut job, &[m]);
+        assert!(loads(&job).iter().all(|l| text_of(&l.connect) == "L2-N"));
+        assert!(validate(&job).is_ok());
+    }
+
+    #[test]
+    fn shared_neutral_circuits_are_added_named_and_removed() {
+        let mut job = new_job("Test");
+        add_custom(&mut job);
+        add_multiwire(&mut job);
+        set_load_field(&mut job, 0, "multiwire", "A");
+        assert!(validate(&job).is_ok(), "{:?}", validate(&job).err());
+        set_load_field(&mut job, 0, "multiwire", "B");
+        assert!(problem_at(&validate(&job).unwrap_err(), "loads[0].multiwire").is_some());
+        set_load_field(&mut job, 0, "multiwire", "A");
+        remove_multiwire(&mut job, 0);
+        assert!(loads(&job)[0].multiwire.is_absent());
+        assert!(validate(&job).is_ok());
+    }
+
+    #[test]
+    fn readings_forms_feed_the_diagnosis() {
+        let forms = vec![
+            ReadingForm {
+                l1_n_v: "104".into(),
+                l2_n_v: "104".into(),
+                l1_a: "0".into(),
+                l2_a: "0".into(),
+                ..Default::default()
+            },
+            ReadingForm {
+                l1_n_v: "101".into(),
+                l2_n_v: "104".into(),
+                l1_a: "20".into(),
+                l2_a: "10".into(),
+                ..Default::default()
+            },
+        ];
+        let r = tapline_core::tools::diagnose::validate_readings(&readings_file(&forms)).unwrap();
+        let d = tapline_core::tools::diagnose::diagnose(&r).unwrap();
+        assert!((d.neutral_ohms - 0.1).abs() < 1e-9);
     }
 
     #[test]

@@ -6,6 +6,8 @@ use crate::storage::{self, Settings, StoredJob};
 use leptos::prelude::*;
 use tapline_core::job::{JobFile, Raw};
 use tapline_core::report::{analyze, Report};
+use tapline_core::tools::balance::{balance, Balance, Layout};
+use tapline_core::tools::diagnose::{diagnose, validate_readings, Diagnosis};
 use tapline_core::validate::{validate, Problem};
 use tapline_core::whatif::{sweep, sweep_points, what_if, Sweep, WhatIf};
 
@@ -18,6 +20,7 @@ pub enum Screen {
     Jobs,
     Job,
     Cautions,
+    Diagnose,
 }
 
 /// Which part of a job is showing.
@@ -27,6 +30,7 @@ pub enum Tab {
     Loads,
     Results,
     WhatIf,
+    Panel,
 }
 
 /// A saved job in the list.
@@ -56,6 +60,13 @@ pub struct AppState {
     pub report: Memo<Option<Result<Report, String>>>,
     pub what_if: Memo<Option<Result<WhatIf, String>>>,
     pub sweep: Memo<Option<Result<Sweep, String>>>,
+    /// Meter readings being entered on the diagnosis screen (kept for the session).
+    pub readings: RwSignal<Vec<edit::ReadingForm>>,
+    /// The diagnosis of those readings, or the problems with them, one line each.
+    pub diagnosis: Memo<Result<Diagnosis, Vec<String>>>,
+    /// True when breaker position 1 is on L2 in this panel.
+    pub flipped: RwSignal<bool>,
+    pub balance: Memo<Option<Balance>>,
 }
 
 /// Milliseconds since 1970, from the browser's clock.
@@ -98,6 +109,32 @@ impl AppState {
                     .map(|j| sweep(&j, &sweep_points(SWEEP_POINTS)).map_err(|e| e.to_string()))
             })
         });
+        let readings = RwSignal::new(vec![
+            edit::ReadingForm {
+                label: "Before".to_string(),
+                ..Default::default()
+            },
+            edit::ReadingForm {
+                label: "Known load switched on".to_string(),
+                ..Default::default()
+            },
+        ]);
+        let diagnosis = Memo::new(move |_| {
+            readings.with(|forms| {
+                validate_readings(&edit::readings_file(forms))
+                    .and_then(|r| diagnose(&r))
+                    .map_err(|e| e.to_string().lines().map(str::to_string).collect())
+            })
+        });
+        let flipped = RwSignal::new(false);
+        let balance = Memo::new(move |_| {
+            let layout = if flipped.get() {
+                Layout::Flipped
+            } else {
+                Layout::Standard
+            };
+            draft.with(|d| validate(d).ok().map(|j| balance(&j, layout)))
+        });
         let state = AppState {
             jobs: RwSignal::new(Vec::new()),
             open_id: RwSignal::new(None),
@@ -113,6 +150,10 @@ impl AppState {
             report,
             what_if,
             sweep,
+            readings,
+            diagnosis,
+            flipped,
+            balance,
         };
         state.load();
         state

@@ -1,5 +1,7 @@
 //! Form fields. Number fields are text inputs with a decimal keypad, so whatever was typed can be
 //! kept and reported by the engine's validation instead of being silently dropped by the browser.
+//! Callbacks are `Callback`s rather than generic closures so each field is compiled once, which
+//! keeps the download small.
 
 use leptos::prelude::*;
 
@@ -10,7 +12,7 @@ pub fn NumberField(
     /// The value when the field is drawn; the field is not re-filled while the user types.
     initial: String,
     #[prop(into)] problem: Signal<Option<String>>,
-    on_text: impl Fn(String) + 'static,
+    #[prop(into)] on_text: Callback<String>,
     #[prop(into)] testid: String,
     #[prop(optional, into)] unit: String,
 ) -> impl IntoView {
@@ -24,7 +26,7 @@ pub fn NumberField(
                     autocomplete="off"
                     prop:value=initial
                     data-testid=testid
-                    on:input=move |ev| on_text(event_target_value(&ev))
+                    on:input=move |ev| on_text.run(event_target_value(&ev))
                 />
                 <span class="unit">{unit}</span>
             </span>
@@ -39,13 +41,13 @@ pub fn TextField(
     label: String,
     initial: String,
     #[prop(into)] problem: Signal<Option<String>>,
-    on_text: impl Fn(String) + 'static,
+    #[prop(into)] on_text: Callback<String>,
     #[prop(into)] testid: String,
 ) -> impl IntoView {
     view! {
         <label class="field" class:bad=move || problem.get().is_some()>
             <span class="field-label">{label}</span>
-            <input type="text" prop:value=initial data-testid=testid on:input=move |ev| on_text(event_target_value(&ev)) />
+            <input type="text" prop:value=initial data-testid=testid on:input=move |ev| on_text.run(event_target_value(&ev)) />
             <span class="field-error" role="alert">{move || problem.get().unwrap_or_default()}</span>
         </label>
     }
@@ -57,7 +59,7 @@ pub fn SelectField(
     label: String,
     options: Vec<(String, String)>,
     selected: String,
-    on_pick: impl Fn(String) + 'static,
+    #[prop(into)] on_pick: Callback<String>,
     #[prop(into)] testid: String,
 ) -> impl IntoView {
     let options = options
@@ -70,7 +72,7 @@ pub fn SelectField(
     view! {
         <label class="field">
             <span class="field-label">{label}</span>
-            <select data-testid=testid on:change=move |ev| on_pick(event_target_value(&ev))>
+            <select data-testid=testid on:change=move |ev| on_pick.run(event_target_value(&ev))>
                 {options}
             </select>
         </label>

@@ -1,6 +1,8 @@
 //! One job: its tabs.
 
-use super::{loads::LoadsTab, results::ResultsTab, service::ServiceTab, whatif::WhatIfTab};
+use super::{
+    loads::LoadsTab, panel::PanelTab, results::ResultsTab, service::ServiceTab, whatif::WhatIfTab,
+};
 use crate::edit;
 use crate::files;
 use crate::state::{AppState, Screen, Tab};
@@ -34,6 +36,7 @@ pub fn JobPage() -> impl IntoView {
                 {tab_button(Tab::Loads, "Loads", "tab-loads")}
                 {tab_button(Tab::Results, "Results", "tab-results")}
                 {tab_button(Tab::WhatIf, "What-if", "tab-whatif")}
+                {tab_button(Tab::Panel, "Panel", "tab-panel")}
             </nav>
             {move || {
                 // Re-drawn when the tab or the job's structure changes, so fields start from the job.
@@ -43,6 +46,7 @@ pub fn JobPage() -> impl IntoView {
                     Tab::Loads => view! { <LoadsTab /> }.into_any(),
                     Tab::Results => view! { <ResultsTab /> }.into_any(),
                     Tab::WhatIf => view! { <WhatIfTab /> }.into_any(),
+                    Tab::Panel => view! { <PanelTab /> }.into_any(),
                 }
             }}
         </section>

@@ -62,7 +62,7 @@ pub fn LoadsTab() -> impl IntoView {
         <div class="tab-body" data-testid="loads-tab">
             <fieldset>
                 <legend>"Add an appliance"</legend>
-                <SelectField label="Put it on".into() options=connects selected="L1-N".to_string() on_pick=move |v| target.set(v) testid="add-target" />
+                <SelectField label="Put it on".into() options=connects selected="L1-N".to_string() on_pick=move |v: String| target.set(v) testid="add-target" />
                 <input class="search" type="search" placeholder="Search appliances" data-testid="library-search" on:input=move |ev| query.set(event_target_value(&ev)) />
                 <ul class="library">{library_rows}</ul>
                 <button data-testid="add-custom" on:click=move |_| state.edit_structure(edit::add_custom)>"+ Custom load"</button>
@@ -154,19 +154,21 @@ fn LoadRow(index: usize) -> impl IntoView {
                 <button class="danger small" data-testid="remove-load" on:click=move |_| state.edit_structure(|j| edit::remove_load(j, index))>"Remove"</button>
             </div>
             <TextField label="Name".into() initial=edit::text_of(&load.name) problem=problem("name")
-                on_text=move |t| state.edit(|j| edit::set_load_field(j, index, "name", &t)) testid="load-name" />
+                on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "name", &t)) testid="load-name" />
             <div class="two">
                 <SelectField label="Connected".into() options=connects selected=edit::text_of(&load.connect)
-                    on_pick=move |v| state.edit_structure(|j| edit::set_load_field(j, index, "connect", &v)) testid="load-connect" />
+                    on_pick=move |v: String| state.edit_structure(|j| edit::set_load_field(j, index, "connect", &v)) testid="load-connect" />
                 <NumberField label="Watts".into() unit="W".to_string() initial=edit::text_of_number(&load.watts) problem=problem("watts")
-                    on_text=move |t| state.edit(|j| edit::set_load_field(j, index, "watts", &t)) testid="load-watts" />
+                    on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "watts", &t)) testid="load-watts" />
             </div>
             <div class="two">
                 <SelectField label="Behaves as".into() options=models selected=edit::text_of(&load.model)
-                    on_pick=move |v| state.edit_structure(|j| edit::set_load_field(j, index, "model", &v)) testid="load-model" />
+                    on_pick=move |v: String| state.edit_structure(|j| edit::set_load_field(j, index, "model", &v)) testid="load-model" />
                 <NumberField label="Power factor".into() initial=edit::text_of_number(&load.power_factor) problem=problem("power_factor")
-                    on_text=move |t| state.edit(|j| edit::set_load_field(j, index, "power_factor", &t)) testid="load-pf" />
+                    on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "power_factor", &t)) testid="load-pf" />
             </div>
+            <TextField label="Shared-neutral circuit (blank if none)".into() initial=edit::text_of(&load.multiwire) problem=problem("multiwire")
+                on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "multiwire", &t)) testid="load-multiwire" />
             <p class="field-error">{move || { let p = path("connect"); state.problem(&p).unwrap_or_default() }}</p>
         </li>
     }

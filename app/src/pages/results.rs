@@ -76,6 +76,26 @@ fn ReportView(report: Report) -> impl IntoView {
         .iter()
         .map(|n| view! { <p class="note">{n.clone()}</p> })
         .collect_view();
+    let multiwire = report
+        .multiwire
+        .iter()
+        .map(|m| {
+            let loud = m.same_leg || m.overloaded;
+            let opens = m
+                .if_neutral_opens
+                .iter()
+                .map(|o| view! { <li>{o.name.clone()} " " <OutcomeBadge outcome=o.outcome /> " " {o.reason.clone()}</li> })
+                .collect_view();
+            view! {
+                <div class="multiwire" class:alarm=loud data-testid="multiwire-result" data-same-leg=m.same_leg.to_string()>
+                    <p><strong>{format!("Shared neutral {} ({})", m.id, m.legs.join(" + "))}</strong></p>
+                    <p class:big-figure=loud>{m.message.clone()}</p>
+                    <p class="note">"If this shared neutral opens:"</p>
+                    <ul>{opens}</ul>
+                </div>
+            }
+        })
+        .collect_view();
     let neutral = format!(
         "{} · neutral bar {} from the transformer neutral",
         report.neutral.state,
@@ -90,6 +110,7 @@ fn ReportView(report: Report) -> impl IntoView {
             <tbody>{legs}</tbody>
         </table>
         {notes}
+        {multiwire}
         <h3>"Appliances"</h3>
         <ul class="appliances">{loads}</ul>
         <p class="note">"Figures are estimates from a model of this job. Verify with a meter before acting."</p>

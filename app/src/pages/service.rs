@@ -56,14 +56,14 @@ pub fn ServiceTab() -> impl IntoView {
                 <Show when=move || present>
                     <SelectField label="Material".into() options=options(&[("al", "Aluminum"), ("cu", "Copper")])
                         selected=edit::conductor_text(&state.draft.get_untracked(), run, "material")
-                        on_pick=move |v| state.edit(|j| edit::set_conductor_text(j, run, "material", &v)) testid=format!("{key}-material") />
+                        on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, "material", &v)) testid=format!("{key}-material") />
                     <SelectField label="Size".into() options=size_options()
                         selected=edit::conductor_text(&state.draft.get_untracked(), run, "size")
-                        on_pick=move |v| state.edit(|j| edit::set_conductor_text(j, run, "size", &v)) testid=format!("{key}-size") />
+                        on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, "size", &v)) testid=format!("{key}-size") />
                     <NumberField label="One-way length".into() unit=units.code().to_string()
                         initial=edit::length_text(&state.draft.get_untracked(), run, units)
                         problem=Signal::derive({ let lp = lp.clone(); move || state.problem(&lp) })
-                        on_text=move |t| state.edit(|j| edit::set_length(j, run, &t, units)) testid=format!("{key}-length") />
+                        on_text=move |t: String| state.edit(|j| edit::set_length(j, run, &t, units)) testid=format!("{key}-length") />
                     <p class="field-error">{let p = format!("service.{key}.size"); move || state.problem(&p).unwrap_or_default()}</p>
                 </Show>
             </fieldset>
@@ -90,18 +90,18 @@ pub fn ServiceTab() -> impl IntoView {
     view! {
         <div class="tab-body" data-testid="service-tab">
             <TextField label="Job name".into() initial=edit::text_of(&job.name) problem=problem("name")
-                on_text=move |t| state.edit(|j| j.name = tapline_core::job::Raw::Given(t)) testid="job-name" />
+                on_text=move |t: String| state.edit(|j| j.name = tapline_core::job::Raw::Given(t)) testid="job-name" />
             <TextField label="Address or notes".into() initial=edit::text_of(&job.notes) problem=problem("notes")
-                on_text=move |t| state.edit(|j| j.notes = tapline_core::job::Raw::Given(t)) testid="job-notes" />
+                on_text=move |t: String| state.edit(|j| j.notes = tapline_core::job::Raw::Given(t)) testid="job-notes" />
             <fieldset>
                 <legend>"System"</legend>
                 <SelectField label="Service".into() options=presets selected=preset.code().to_string()
-                    on_pick=move |code| if let Some(p) = Preset::from_code(&code) { state.edit_structure(|j| edit::set_preset(j, p)) }
+                    on_pick=move |code: String| if let Some(p) = Preset::from_code(&code) { state.edit_structure(|j| edit::set_preset(j, p)) }
                     testid="system-preset" />
                 <Show when=move || custom>
                     <NumberField label="Volts, leg to neutral".into() unit="V".to_string()
                         initial=job.system.given().map(|s| edit::text_of_number(&s.volts_to_neutral)).unwrap_or_default()
-                        problem=problem("system.volts_to_neutral") on_text=move |t| state.edit(|j| edit::set_volts(j, &t)) testid="system-volts" />
+                        problem=problem("system.volts_to_neutral") on_text=move |t: String| state.edit(|j| edit::set_volts(j, &t)) testid="system-volts" />
                 </Show>
             </fieldset>
             <fieldset>
@@ -113,23 +113,69 @@ pub fn ServiceTab() -> impl IntoView {
                 </label>
                 <Show when=move || has_t>
                     <NumberField label="Rating".into() unit="kVA".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), "kva")
-                        problem=problem("transformer.kva") on_text=move |t| state.edit(|j| edit::set_transformer_field(j, "kva", &t)) testid="transformer-kva" />
+                        problem=problem("transformer.kva") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, "kva", &t)) testid="transformer-kva" />
                     <NumberField label="Primary voltage".into() unit="V".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), "primary_v")
-                        problem=problem("transformer.primary_v") on_text=move |t| state.edit(|j| edit::set_transformer_field(j, "primary_v", &t)) testid="transformer-primary" />
+                        problem=problem("transformer.primary_v") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, "primary_v", &t)) testid="transformer-primary" />
                     <NumberField label="Impedance".into() unit="%Z".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), "impedance_pct")
-                        problem=problem("transformer.impedance_pct") on_text=move |t| state.edit(|j| edit::set_transformer_field(j, "impedance_pct", &t)) testid="transformer-z" />
+                        problem=problem("transformer.impedance_pct") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, "impedance_pct", &t)) testid="transformer-z" />
                     <NumberField label="X/R".into() initial=edit::transformer_text(&state.draft.get_untracked(), "x_over_r")
-                        problem=problem("transformer.x_over_r") on_text=move |t| state.edit(|j| edit::set_transformer_field(j, "x_over_r", &t)) testid="transformer-xr" />
+                        problem=problem("transformer.x_over_r") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, "x_over_r", &t)) testid="transformer-xr" />
                     {figures}
                 </Show>
             </fieldset>
             {conductor(Run::Hot, "Service hot conductors")}
             {conductor(Run::Neutral, "Service neutral conductor")}
+            <MultiwireSection />
             <fieldset>
                 <legend>"Units"</legend>
                 <SelectField label="Lengths in".into() options=options(&[("ft", "feet"), ("m", "metres")]) selected=units.code().to_string()
-                    on_pick=move |v| state.set_units(Units::parse(&v)) testid="units" />
+                    on_pick=move |v: String| state.set_units(Units::parse(&v)) testid="units" />
             </fieldset>
         </div>
+    }
+}
+
+/// Shared-neutral (multiwire) branch circuits: their ids and neutral conductors.
+#[component]
+fn MultiwireSection() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let list = edit::multiwire_list(&state.draft.get_untracked());
+    let rows = list
+        .into_iter()
+        .enumerate()
+        .map(|(i, m)| {
+            let p = move |f: &'static str| {
+                let path = format!("multiwire[{i}].{f}");
+                Signal::derive(move || state.problem(&path))
+            };
+            let sizes: Vec<(String, String)> = ["14", "12", "10", "8", "6"].iter().map(|s| (s.to_string(), format!("{s} AWG"))).collect();
+            let columns: Vec<(String, String)> = ["60", "75", "90"].iter().map(|c| (c.to_string(), format!("{c} °C column"))).collect();
+            let size = match &m.size {
+                tapline_core::job::Raw::Given(serde_json::Value::String(s)) => s.clone(),
+                _ => "12".to_string(),
+            };
+            view! {
+                <div class="mw-row" data-testid="multiwire-row">
+                    <TextField label="Circuit id (loads name it)".into() initial=edit::text_of(&m.id) problem=p("id")
+                        on_text=move |t: String| state.edit(|j| edit::set_multiwire_field(j, i, "id", &t)) testid="multiwire-id" />
+                    <div class="two">
+                        <SelectField label="Material".into() options=options(&[("cu", "Copper"), ("al", "Aluminum")]) selected=edit::text_of(&m.material)
+                            on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, "material", &v)) testid="multiwire-material" />
+                        <SelectField label="Neutral size".into() options=sizes selected=size
+                            on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, "size", &v)) testid="multiwire-size" />
+                    </div>
+                    <SelectField label="Ampacity (NEC Table 310.16)".into() options=columns selected=format!("{}", m.column_c.given().copied().unwrap_or(60.0))
+                        on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, "column_c", &v)) testid="multiwire-column" />
+                    <button class="danger small" data-testid="remove-multiwire" on:click=move |_| state.edit_structure(|j| edit::remove_multiwire(j, i))>"Remove"</button>
+                </div>
+            }
+        })
+        .collect_view();
+    view! {
+        <fieldset>
+            <legend>"Shared-neutral (multiwire) circuits"</legend>
+            {rows}
+            <button data-testid="add-multiwire" on:click=move |_| state.edit_structure(edit::add_multiwire)>"+ Shared-neutral circuit"</button>
+        </fieldset>
     }
 }

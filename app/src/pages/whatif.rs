@@ -97,12 +97,12 @@ fn WhatIfBody() -> impl IntoView {
         <Show when=move || current.get() == "loose">
             <NumberField label="Loose-connection resistance".into() unit="Ω".to_string() initial=ohms.clone()
                 problem=Signal::derive(move || state.problem("neutral.ohms"))
-                on_text=move |t| state.edit(|j| edit::set_neutral_number(j, "ohms", &t)) testid="neutral-ohms" />
+                on_text=move |t: String| state.edit(|j| edit::set_neutral_number(j, "ohms", &t)) testid="neutral-ohms" />
         </Show>
         <Show when=move || current.get() == "open">
             <NumberField label="Earth return through the grounding electrode (blank for none)".into() unit="Ω".to_string() initial=earth.clone()
                 problem=Signal::derive(move || state.problem("neutral.earth_return_ohms"))
-                on_text=move |t| state.edit(|j| edit::set_neutral_number(j, "earth_return_ohms", &t)) testid="neutral-earth" />
+                on_text=move |t: String| state.edit(|j| edit::set_neutral_number(j, "earth_return_ohms", &t)) testid="neutral-earth" />
         </Show>
         {plot}
         <h3>"If the neutral opens"</h3>
