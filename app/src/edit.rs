@@ -259,6 +259,14 @@ pub fn connect_options(job: &JobFile) -> Vec<&'static str> {
     connect_options_for(&legs_of(job))
 }
 
+/// The same as (value, label) pairs for a select field.
+pub fn connect_choices(job: &JobFile) -> Vec<(String, String)> {
+    connect_options(job)
+        .into_iter()
+        .map(|c| (c.to_string(), c.to_string()))
+        .collect()
+}
+
 /// Turns the transformer on (with typical pole-mount values to edit) or off.
 pub fn set_transformer(job: &mut JobFile, on: bool) {
     job.transformer = if on {
@@ -470,25 +478,34 @@ pub fn set_neutral_number(job: &mut JobFile, field: &str, text: &str) {
 }
 
 fn loads_mut(job: &mut JobFile) -> &mut Vec<Raw<LoadFile>> {
-    if job.loads.given().is_none() {
-        job.loads = Raw::Given(Vec::new());
-    }
-    let Raw::Given(l) = &mut job.loads else {
-        unreachable!("set just above")
-    };
-    l
+    entries_mut(&mut job.loads)
 }
 
-/// The loads as given (unreadable entries show as defaults).
-pub fn loads(job: &JobFile) -> Vec<LoadFile> {
-    job.loads
-        .given()
+/// The entries of a list field as given (unreadable entries show as defaults).
+fn entries<T: Clone + Default>(list: &Raw<Vec<Raw<T>>>) -> Vec<T> {
+    list.given()
         .map(|l| {
             l.iter()
                 .map(|r| r.given().cloned().unwrap_or_default())
                 .collect()
         })
         .unwrap_or_default()
+}
+
+/// A list field made editable (an absent or unreadable list becomes an empty one).
+fn entries_mut<T>(list: &mut Raw<Vec<Raw<T>>>) -> &mut Vec<Raw<T>> {
+    if list.given().is_none() {
+        *list = Raw::Given(Vec::new());
+    }
+    match list {
+        Raw::Given(l) => l,
+        _ => unreachable!("set just above"),
+    }
+}
+
+/// The loads as given (unreadable entries show as defaults).
+pub fn loads(job: &JobFile) -> Vec<LoadFile> {
+    entries(&job.loads)
 }
 
 /// Adds a library appliance on `connect`, numbering its name if the job has one already.
@@ -598,24 +615,11 @@ pub fn apply_moves(job: &mut JobFile, moves: &[Move]) {
 
 /// The shared-neutral circuits as given.
 pub fn multiwire_list(job: &JobFile) -> Vec<MultiwireFile> {
-    job.multiwire
-        .given()
-        .map(|l| {
-            l.iter()
-                .map(|r| r.given().cloned().unwrap_or_default())
-                .collect()
-        })
-        .unwrap_or_default()
+    entries(&job.multiwire)
 }
 
 fn multiwire_mut(job: &mut JobFile) -> &mut Vec<Raw<MultiwireFile>> {
-    if job.multiwire.given().is_none() {
-        job.multiwire = Raw::Given(Vec::new());
-    }
-    let Raw::Given(l) = &mut job.multiwire else {
-        unreachable!("set just above")
-    };
-    l
+    entries_mut(&mut job.multiwire)
 }
 
 /// Adds a shared-neutral circuit (12 AWG copper, 60 °C column) with the next free letter as id.

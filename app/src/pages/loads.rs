@@ -19,12 +19,7 @@ pub fn LoadsTab() -> impl IntoView {
     let state = expect_context::<AppState>();
     let query = RwSignal::new(String::new());
     let target = RwSignal::new("L1-N".to_string());
-    let connects: Vec<(String, String)> = state
-        .draft
-        .with_untracked(edit::connect_options)
-        .into_iter()
-        .map(|c| (c.to_string(), c.to_string()))
-        .collect();
+    let connects = state.draft.with_untracked(edit::connect_choices);
     let library_rows = move || {
         library::search(&query.get())
             .into_iter()
@@ -118,12 +113,7 @@ fn LoadRow(index: usize) -> impl IntoView {
     let load = state
         .draft
         .with_untracked(|d| edit::loads(d).get(index).cloned().unwrap_or_default());
-    let connects: Vec<(String, String)> = state
-        .draft
-        .with_untracked(edit::connect_options)
-        .into_iter()
-        .map(|c| (c.to_string(), c.to_string()))
-        .collect();
+    let connects = state.draft.with_untracked(edit::connect_choices);
     let models: Vec<(String, String)> = MODELS
         .iter()
         .map(|(v, l)| (v.to_string(), l.to_string()))
