@@ -90,6 +90,8 @@ describe('jobs', () => {
     await page.click('[data-testid=tab-results]');
     const outcomes = await page.$$eval('[data-testid=appliance-result]', (els) => els.map((e) => e.getAttribute('data-outcome')));
     assert.ok(outcomes.includes('likely_damage') && outcomes.includes('stall'), `outcomes open: ${outcomes}`);
+    // The homeowner summary says it in plain words, from the same results.
+    assert.match(await page.textContent('[data-testid=homeowner-summary]'), /these appliances get a harmful voltage: .*Aquarium heater/);
     await shot(page, 'phone-results-open');
     await context.close();
   });

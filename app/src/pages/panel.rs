@@ -54,7 +54,7 @@ pub fn PanelTab() -> impl IntoView {
     };
     view! {
         <div class="tab-body" data-testid="panel-tab">
-            <p class="note">"Movable 120 V circuits only; 240 V loads and circuits marked not movable stay put. A load's `circuit` groups loads on one breaker."</p>
+            <p class="note">"Movable 120 V circuits only; 240 V loads and circuits marked not movable stay put. Loads given the same circuit move together, as on one breaker."</p>
             <label class="check">
                 <input type="checkbox" prop:checked=state.flipped.get_untracked() data-testid="flip-layout" on:change=move |ev| state.flipped.set(event_target_checked(&ev)) />
                 "Position 1 is on L2 in this panel (flip the usual layout)"
