@@ -299,3 +299,59 @@ fn loose_at_zero_ohms_equals_intact() {
         );
     }
 }
+
+/// Arbitrary JSON values to drop into a job's fields.
+fn junk() -> impl Strategy<Value = Value> {
+    prop_oneof![
+        Just(Value::Null),
+        any::<bool>().prop_map(Value::from),
+        any::<i64>().prop_map(Value::from),
+        (-1e9..1e9f64).prop_map(Value::from),
+        Just(json!(1e300)),
+        Just(json!(0)),
+        Just(json!(-0.0)),
+        "[a-zA-Z0-9 /-]{0,8}".prop_map(Value::from),
+        Just(json!([])),
+        Just(json!({})),
+        Just(json!([[3, 0.5], [1, 9]])),
+    ]
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 300, .. ProptestConfig::default() })]
+
+    /// Whatever a job file holds, the pipeline answers with a report of finite numbers or with
+    /// errors; it never panics and never reports NaN.
+    #[test]
+    fn any_field_value_gives_a_report_or_errors(v in gen::job(false), path in 0usize..14, value in junk()) {
+        let mut v = v;
+        let slot = match path {
+            0 => &mut v["system"]["kind"],
+            1 => &mut v["system"]["volts_to_neutral"],
+            2 => &mut v["system"]["phases"],
+            3 => &mut v["service"]["hot"]["r_ohm"],
+            4 => &mut v["service"]["neutral"],
+            5 => &mut v["neutral"]["state"],
+            6 => &mut v["neutral"]["ohms"],
+            7 => &mut v["loads"][0]["watts"],
+            8 => &mut v["loads"][0]["connect"],
+            9 => &mut v["loads"][0]["model"],
+            10 => &mut v["loads"][0]["power_factor"],
+            11 => &mut v["loads"][0]["harmonics"],
+            12 => &mut v["loads"][0]["rated_v"],
+            _ => &mut v["transformer"],
+        };
+        *slot = value;
+        match tapline_core::solve_text(&v.to_string()) {
+            Ok(r) => {
+                let text = serde_json::to_string(&r).unwrap();
+                prop_assert!(!text.contains("NaN") && !text.contains("inf"), "{text}");
+                prop_assert!(r.loads.iter().all(|l| l.current_a.is_finite() && l.voltage_v.is_none_or(f64::is_finite)));
+                prop_assert!(r.neutral_current_a.is_finite() && r.earth_current_a.is_finite());
+                prop_assert!(r.legs.values().all(|l| l.current_a.is_finite() && l.volts_to_neutral.is_none_or(f64::is_finite)));
+            }
+            Err(tapline_core::EngineError::Invalid(problems)) => prop_assert!(!problems.is_empty()),
+            Err(e) => prop_assert!(!e.to_string().is_empty()),
+        }
+    }
+}
