@@ -87,26 +87,29 @@ impl AppState {
     /// Builds the state, loads saved jobs and offers the demo job on first start.
     pub fn new() -> AppState {
         let draft = RwSignal::new(edit::new_job("New job"));
-        let problems = Memo::new(move |_| draft.with(|d| validate(d).err().unwrap_or_default()));
+        // Validate once per edit; every result below derives from this one memo.
+        let valid = Memo::new(move |_| draft.with(validate));
+        let problems =
+            Memo::new(move |_| valid.with(|v| v.as_ref().err().cloned().unwrap_or_default()));
         let report = Memo::new(move |_| {
-            draft.with(|d| {
-                validate(d)
+            valid.with(|v| {
+                v.as_ref()
                     .ok()
-                    .map(|j| analyze(&j).map_err(|e| e.to_string()))
+                    .map(|j| analyze(j).map_err(|e| e.to_string()))
             })
         });
         let what_if = Memo::new(move |_| {
-            draft.with(|d| {
-                validate(d)
+            valid.with(|v| {
+                v.as_ref()
                     .ok()
-                    .map(|j| what_if(&j).map_err(|e| e.to_string()))
+                    .map(|j| what_if(j).map_err(|e| e.to_string()))
             })
         });
         let sweep = Memo::new(move |_| {
-            draft.with(|d| {
-                validate(d)
+            valid.with(|v| {
+                v.as_ref()
                     .ok()
-                    .map(|j| sweep(&j, &sweep_points(SWEEP_POINTS)).map_err(|e| e.to_string()))
+                    .map(|j| sweep(j, &sweep_points(SWEEP_POINTS)).map_err(|e| e.to_string()))
             })
         });
         let readings = RwSignal::new(vec![
@@ -133,7 +136,7 @@ impl AppState {
             } else {
                 Layout::Standard
             };
-            draft.with(|d| validate(d).ok().map(|j| balance(&j, layout)))
+            valid.with(|v| v.as_ref().ok().map(|j| balance(j, layout)))
         });
         let state = AppState {
             jobs: RwSignal::new(Vec::new()),

@@ -2,7 +2,6 @@
 
 use crate::components::{CautionList, NumberField, SelectField, TextField};
 use crate::edit::ReadingForm;
-use crate::format;
 use crate::state::{AppState, Screen};
 use leptos::prelude::*;
 
@@ -37,7 +36,6 @@ pub fn DiagnosePage() -> impl IntoView {
             .into_any(),
         })
     };
-    let _ = format::amps;
     view! {
         <section class="page" data-testid="diagnose-page">
             <div class="job-head">

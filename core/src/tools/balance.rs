@@ -107,7 +107,6 @@ pub struct Balance {
 
 /// Groups a job's loads into circuits (a load with no `circuit` is its own).
 pub fn circuits(job: &Job) -> Vec<Circuit> {
-    let v = job.system().volts_to_neutral();
     let mut out: Vec<Circuit> = Vec::new();
     for (i, load) in job.loads().iter().enumerate() {
         let id = load
@@ -144,7 +143,6 @@ pub fn circuits(job: &Job) -> Vec<Circuit> {
             }),
         }
     }
-    let _ = v;
     for c in out.iter_mut() {
         if c.leg.is_none() {
             c.movable = false;
