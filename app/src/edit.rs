@@ -89,6 +89,7 @@ pub fn new_job(name: &str) -> JobFile {
             volts_to_neutral: Raw::Given(120.0),
             frequency_hz: Raw::Given(60.0),
             phases: Raw::Absent,
+            ..SystemFile::default()
         }),
         neutral: Raw::Given(NeutralFile {
             state: Raw::Given("intact".to_string()),
@@ -211,6 +212,7 @@ pub fn set_preset(job: &mut JobFile, preset: Preset) {
         volts_to_neutral: volts.map(Raw::Given).unwrap_or(old.volts_to_neutral),
         frequency_hz: Raw::Given(hz),
         phases: phases.map(Raw::Given).unwrap_or_default(),
+        unknown: old.unknown,
     });
     // Loads on a leg the new system lacks are moved to L1 so the job stays valid.
     let legs = legs_of(job);
@@ -694,8 +696,10 @@ pub fn readings_file(forms: &[ReadingForm]) -> ReadingsFile {
             volts_to_neutral: Raw::Given(120.0),
             frequency_hz: Raw::Given(60.0),
             phases: Raw::Absent,
+            ..SystemFile::default()
         }),
         meter: Raw::Absent,
+        unknown: Default::default(),
         readings: Raw::Given(
             forms
                 .iter()
@@ -712,6 +716,7 @@ pub fn readings_file(forms: &[ReadingForm]) -> ReadingsFile {
                         l1_l2_v: Raw::Absent,
                         l1_a: number_from_text(&f.l1_a),
                         l2_a: number_from_text(&f.l2_a),
+                        ..ReadingFile::default()
                     })
                 })
                 .collect(),

@@ -59,6 +59,7 @@ fn netlist(net: &Network) -> String {
     let name = |node: Node| match node {
         Node::Hot(l) => format!("p{}", l.index()),
         Node::Neutral => "pn".to_string(),
+        Node::Shared(k) => format!("ps{k}"),
     };
     for (k, (p, r)) in net.loads().iter().zip(&sol.loads).enumerate() {
         let z = r.terminal_v.unwrap() / r.current;

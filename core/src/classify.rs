@@ -1,10 +1,15 @@
-//! Outcomes: what the voltage an appliance gets means for it, from bands kept here as data.
+//! Outcomes: what the voltage an appliance gets means for it, judged twice and the worse kept.
 //!
-//! Each band is a range of the voltage as a fraction of the appliance's rated voltage, with the
-//! outcome and its source. The utilization limits of ANSI C84.1 set "normal" (Range A) and
-//! "marginal" (Range B) for every kind of load; beyond them each kind has its own limits.
+//! 1. Against the **system**: the voltage band of the service's standard, referred to the system
+//!    nominal voltage of the appliance's connection (120, 208, 240, 277, 480 V, …): ANSI C84.1
+//!    utilization ranges on 60 Hz services, IEC 60038 on 50 Hz services.
+//! 2. Against the **appliance's nameplate**: its own tolerance (a motor ±10 % of its rating, an
+//!    electronic supply's input range, a lamp's life, a heater's power).
+//!
+//! The report names the rule that decided. A 115 V motor on a 120 V circuit is normal on both.
 
 use crate::loads::{Load, Model, State, LAMP_LIFE_EXPONENT};
+use crate::system::System;
 use serde::Serialize;
 
 /// What an appliance's voltage means for it, mildest first.
@@ -39,7 +44,7 @@ impl Outcome {
     pub fn label(self) -> &'static str {
         match self {
             Outcome::Off => "off",
-            Outcome::Normal => "normal",
+            Outcome::Normal => "voltage OK",
             Outcome::Marginal => "marginal",
             Outcome::UnderVoltage => "under-voltage",
             Outcome::OverVoltage => "over-voltage stress",
@@ -61,9 +66,10 @@ impl Outcome {
     }
 }
 
-/// ANSI C84.1 voltage ranges, as fractions of nominal (from memory; 120 V base figures in
-/// brackets). Range A is the design range for normal operation; outside Range B calls for prompt
-/// corrective action.
+/// ANSI C84.1 voltage ranges, as fractions of the system nominal voltage (from memory; the
+/// standard tabulates them on a 120 V base, the figures in brackets, and for each nominal system
+/// voltage; the fractions carry the 120 V figures to the others). Range A is the design range for
+/// normal operation; outside Range B calls for prompt corrective action.
 pub mod ansi {
     /// Range A service voltage: 114–126 V (0.95–1.05).
     pub const SERVICE_A: (f64, f64) = (114.0 / 120.0, 126.0 / 120.0);
@@ -80,39 +86,125 @@ pub mod ansi {
     pub const UTILIZATION_B_MIN_NONLIGHTING: f64 = 104.0 / 120.0;
 }
 
-/// The ANSI C84.1 range a service voltage falls in.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
-pub enum AnsiRange {
-    A,
-    B,
-    Outside,
+/// IEC 60038 voltage tolerances, as fractions of the nominal voltage (from memory): ±10 % at the
+/// supply terminals under normal conditions, and a further 4 % allowed for the drop inside the
+/// installation, so −14 % to +10 % at the point of utilization.
+pub mod iec {
+    /// Supply terminals: 0.90–1.10 of nominal (230 V: 207–253 V).
+    pub const SUPPLY: (f64, f64) = (0.90, 1.10);
+    /// Point of utilization: 0.86–1.10 of nominal.
+    pub const UTILIZATION: (f64, f64) = (0.86, 1.10);
 }
 
-impl AnsiRange {
-    pub fn code(self) -> &'static str {
+/// The voltage standard a service is judged by.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+pub enum Standard {
+    /// ANSI C84.1, for 60 Hz (North American) services.
+    #[serde(rename = "ANSI C84.1")]
+    AnsiC84_1,
+    /// IEC 60038, for 50 Hz services.
+    #[serde(rename = "IEC 60038")]
+    Iec60038,
+}
+
+impl Standard {
+    /// The standard for a system: IEC 60038 at 50 Hz, ANSI C84.1 otherwise.
+    pub fn of(system: &System) -> Standard {
+        if (system.frequency_hz() - 50.0).abs() < 1.0 {
+            Standard::Iec60038
+        } else {
+            Standard::AnsiC84_1
+        }
+    }
+
+    pub fn name(self) -> &'static str {
         match self {
-            AnsiRange::A => "A",
-            AnsiRange::B => "B",
-            AnsiRange::Outside => "outside",
+            Standard::AnsiC84_1 => "ANSI C84.1",
+            Standard::Iec60038 => "IEC 60038",
         }
     }
 }
 
-/// Classifies a service (panel) voltage against ANSI C84.1 service ranges.
-pub fn service_range(volts: f64, nominal: f64) -> AnsiRange {
-    let f = volts / nominal;
-    if (ansi::SERVICE_A.0..=ansi::SERVICE_A.1).contains(&f) {
-        AnsiRange::A
-    } else if (ansi::SERVICE_B.0..=ansi::SERVICE_B.1).contains(&f) {
-        AnsiRange::B
-    } else {
-        AnsiRange::Outside
+/// A voltage's place in its standard's bands.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+pub enum Band {
+    /// ANSI Range A, or inside the IEC tolerance.
+    A,
+    /// ANSI Range B, or (IEC, utilization) inside the allowance for the installation's drop.
+    B,
+    Outside,
+}
+
+impl Band {
+    pub fn code(self) -> &'static str {
+        match self {
+            Band::A => "A",
+            Band::B => "B",
+            Band::Outside => "outside",
+        }
     }
 }
 
-/// Limits beyond the ANSI ranges, per kind of load, as fractions of rated voltage.
+/// Kept for the app's readers of `ansi_range`: the ANSI C84.1 band type.
+pub type AnsiRange = Band;
+
+/// A service (panel) voltage's band under the system's standard, against `nominal`.
+pub fn service_band(standard: Standard, volts: f64, nominal: f64) -> Band {
+    let f = volts / nominal;
+    let within = |r: (f64, f64)| (r.0..=r.1).contains(&f);
+    match standard {
+        Standard::AnsiC84_1 if within(ansi::SERVICE_A) => Band::A,
+        Standard::AnsiC84_1 if within(ansi::SERVICE_B) => Band::B,
+        Standard::Iec60038 if within(iec::SUPPLY) => Band::A,
+        _ => Band::Outside,
+    }
+}
+
+/// The ANSI C84.1 service range of a voltage against `nominal`.
+pub fn service_range(volts: f64, nominal: f64) -> Band {
+    service_band(Standard::AnsiC84_1, volts, nominal)
+}
+
+/// A utilization voltage's band: ANSI Range A and B (the lighting or non-lighting minimum), or
+/// IEC 60038's supply tolerance (A) and utilization allowance (B).
+pub fn utilization_band(standard: Standard, volts: f64, nominal: f64, lighting: bool) -> Band {
+    let f = volts / nominal;
+    match standard {
+        Standard::AnsiC84_1 => {
+            let (a_min, b_min) = if lighting {
+                (ansi::UTILIZATION_A.0, ansi::UTILIZATION_B.0)
+            } else {
+                (
+                    ansi::UTILIZATION_A_MIN_NONLIGHTING,
+                    ansi::UTILIZATION_B_MIN_NONLIGHTING,
+                )
+            };
+            if f >= a_min && f <= ansi::UTILIZATION_A.1 {
+                Band::A
+            } else if f >= b_min && f <= ansi::UTILIZATION_B.1 {
+                Band::B
+            } else {
+                Band::Outside
+            }
+        }
+        Standard::Iec60038 => {
+            if (iec::SUPPLY.0..=iec::SUPPLY.1).contains(&f) {
+                Band::A
+            } else if (iec::UTILIZATION.0..=iec::UTILIZATION.1).contains(&f) {
+                Band::B
+            } else {
+                Band::Outside
+            }
+        }
+    }
+}
+
+/// An appliance's own tolerance, as fractions of its nameplate voltage.
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub struct KindLimits {
+pub struct Tolerance {
+    /// Normal operation from `low` to `high`.
+    pub low: f64,
+    pub high: f64,
     /// At or above this an over-voltage becomes likely damage.
     pub damage_above: f64,
     /// What wears out, for the sentence ("heating element").
@@ -120,46 +212,93 @@ pub struct KindLimits {
     pub source: &'static str,
 }
 
-/// Heaters and other resistive loads: power rises as V²; at 120 % voltage an element runs at 144 %
-/// power (common practice, no source).
-pub const RESISTIVE: KindLimits = KindLimits {
+/// Heaters and other resistive loads: power rises as V², so at 110 % an element runs at 121 %
+/// power and at 120 % at 144 % (P = V²/R); the thresholds are common practice, no source.
+pub const RESISTIVE: Tolerance = Tolerance {
+    low: 0.90,
+    high: 1.10,
     damage_above: 1.20,
     part: "heating element",
-    source: "P = V²/R; damage threshold common practice, no source",
+    source: "P = V²/R; thresholds common practice, no source",
 };
 /// Constant-impedance loads (transformers, ballasts): core saturation and overheating above
 /// about 115 % (common practice, no source).
-pub const IMPEDANCE: KindLimits = KindLimits {
+pub const IMPEDANCE: Tolerance = Tolerance {
+    low: 0.90,
+    high: 1.10,
     damage_above: 1.15,
     part: "windings",
     source: "common practice, no source",
 };
-/// Tungsten lamps: life ∝ V^−13 (IES Lighting Handbook, from memory); at 115 % voltage life falls
-/// to about a sixth.
-pub const LAMP: KindLimits = KindLimits {
+/// Tungsten lamps: life ∝ V^−13 (IES Lighting Handbook, from memory): at 105 % life is about half,
+/// at 115 % about a sixth.
+pub const LAMP: Tolerance = Tolerance {
+    low: 0.90,
+    high: 1.05,
     damage_above: 1.15,
     part: "filament",
     source: "life ∝ V^-13, IES Lighting Handbook (from memory)",
 };
-/// Motors: rated load within ±10 % of rated voltage (NEMA MG 1 §12.44); insulation and
-/// saturation stress well above it (damage threshold common practice, no source).
-pub const MOTOR: KindLimits = KindLimits {
+/// Motors: rated load within ±10 % of rated voltage (NEMA MG 1 §12.44, from memory); insulation
+/// and saturation stress well above it (damage threshold common practice, no source).
+pub const MOTOR: Tolerance = Tolerance {
+    low: 1.0 - MOTOR_TOLERANCE,
+    high: 1.0 + MOTOR_TOLERANCE,
     damage_above: 1.20,
     part: "motor",
-    source: "NEMA MG 1 §12.44 (±10 %); damage threshold common practice, no source",
+    source: "NEMA MG 1 §12.44 (±10 %, from memory); damage threshold common practice, no source",
 };
 /// NEMA MG 1 §12.44 tolerance for motors running at rated load, ± fraction of rated voltage.
 pub const MOTOR_TOLERANCE: f64 = 0.10;
+
+/// Below this fraction of its rating an appliance gets no usable voltage at all.
+pub const NO_VOLTAGE_FRACTION: f64 = 0.05;
+/// Below this fraction of its rating a tungsten lamp gives no useful light (its light falls
+/// roughly as V^3.4, so at a quarter of its voltage it gives under 1 %; IES Lighting Handbook
+/// exponent, from memory).
+pub const LAMP_DARK_FRACTION: f64 = 0.25;
+/// Below this fraction of its rating a stalled motor draws little current (locked-rotor current
+/// scales with voltage), so it is not described as drawing locked-rotor current.
+pub const MOTOR_FEEBLE_FRACTION: f64 = 0.30;
+/// A switched-off appliance with more than this multiple of its rating across its open switch has
+/// terminals that are live at a dangerous voltage (common practice, no source).
+pub const OFF_LIVE_MULTIPLE: f64 = 1.5;
+
+fn tolerance_of(model: Model) -> Tolerance {
+    match model {
+        Model::Resistive => RESISTIVE,
+        Model::Lamp => LAMP,
+        Model::Motor => MOTOR,
+        _ => IMPEDANCE,
+    }
+}
 
 /// Why an outcome was given: the facts for the one-line sentence, which is only written when asked
 /// for (the sweep needs thousands of outcomes and no sentences).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Why {
     Off,
+    /// Switched off, with `v` across its open switch: its terminals are live.
+    OffLive {
+        v: f64,
+    },
+    /// Too little voltage to do anything.
+    NoVoltage {
+        v: f64,
+    },
+    /// A lamp too low to give light.
+    Dark {
+        v: f64,
+        f: f64,
+    },
     /// Stalled because its voltage is below the stall point.
     StalledLow {
         v: f64,
         f: f64,
+    },
+    /// Stalled at a voltage so low it barely draws current.
+    StalledFeeble {
+        v: f64,
     },
     /// Stalled because the supply collapses when it runs.
     StalledCollapse {
@@ -186,15 +325,8 @@ pub enum Why {
         min_v: f64,
         max_v: f64,
     },
-    RangeA {
-        v: f64,
-        f: f64,
-    },
-    HighRangeB {
-        v: f64,
-        f: f64,
-    },
-    LowRangeB {
+    /// Normal on its nameplate.
+    Rated {
         v: f64,
         f: f64,
     },
@@ -213,16 +345,34 @@ pub enum Why {
         v: f64,
         f: f64,
     },
+    /// The appliance is fine on its nameplate, but the system band is not.
+    SystemBand {
+        v: f64,
+        standard: Standard,
+        band: Band,
+        nominal: f64,
+        high: bool,
+    },
 }
 
 impl std::fmt::Display for Why {
     fn fmt(&self, out: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match *self {
             Why::Off => write!(out, "switched off"),
+            Why::OffLive { v } => write!(
+                out,
+                "switched off, but {v:.0} V stands across its switch: its terminals are live and can shock"
+            ),
+            Why::NoVoltage { v } => write!(out, "gets no voltage ({v:.0} V): does not run"),
+            Why::Dark { v, f } => write!(out, "gets {v:.0} V ({:.0} %): dark", f * 100.0),
             Why::StalledLow { v, f } => write!(
                 out,
                 "gets {v:.0} V ({:.0} %): too low to keep turning; it stalls and draws locked-rotor current until its overload trips",
                 f * 100.0
+            ),
+            Why::StalledFeeble { v } => write!(
+                out,
+                "gets {v:.0} V: far too little to turn; it sits stalled and may hum until the voltage returns or its overload trips"
             ),
             Why::StalledCollapse { v } => write!(
                 out,
@@ -248,25 +398,15 @@ impl std::fmt::Display for Why {
                 out,
                 "gets {v:.0} V: inside its {min_v:.0}–{max_v:.0} V input range"
             ),
-            Why::RangeA { v, f } => write!(
+            Why::Rated { v, f } => write!(
                 out,
-                "gets {v:.0} V ({:.0} % of rated): within ANSI C84.1 Range A",
-                f * 100.0
-            ),
-            Why::HighRangeB { v, f } => write!(
-                out,
-                "gets {v:.0} V ({:.0} %): high, within ANSI C84.1 Range B",
-                f * 100.0
-            ),
-            Why::LowRangeB { v, f } => write!(
-                out,
-                "gets {v:.0} V ({:.0} %): low, within ANSI C84.1 Range B",
+                "gets {v:.0} V ({:.0} % of its rating): within its tolerance",
                 f * 100.0
             ),
             Why::Damage { model, v, f } => match model {
                 Model::Resistive => write!(
                     out,
-                    "gets {v:.0} V ({:.0} % power): its {} is likely to burn out within minutes",
+                    "gets {v:.0} V ({:.0} % power): its {} overheats and is likely to fail early",
                     f * f * 100.0,
                     RESISTIVE.part
                 ),
@@ -280,21 +420,33 @@ impl std::fmt::Display for Why {
                     out,
                     "gets {v:.0} V ({:.0} %): its {} is likely to be damaged",
                     f * 100.0,
-                    limits_of(model).part
+                    tolerance_of(model).part
                 ),
             },
             Why::Over { model, v, f } => match model {
-                Model::Resistive => write!(out, "gets {v:.0} V: runs at {:.0} % power and overheats", f * f * 100.0),
-                Model::Lamp => write!(out, "gets {v:.0} V: burns brighter with {} of its normal life", life_left(f)),
+                Model::Resistive => write!(
+                    out,
+                    "gets {v:.0} V: runs at {:.0} % power and overheats",
+                    f * f * 100.0
+                ),
+                Model::Lamp => write!(
+                    out,
+                    "gets {v:.0} V: burns brighter with {} of its normal life",
+                    life_left(f)
+                ),
                 _ => write!(
                     out,
                     "gets {v:.0} V ({:.0} %): over-voltage stresses its {}",
                     f * 100.0,
-                    limits_of(model).part
+                    tolerance_of(model).part
                 ),
             },
             Why::Under { model, v, f } => match model {
-                Model::Resistive => write!(out, "gets {v:.0} V: heats slowly at {:.0} % power", f * f * 100.0),
+                Model::Resistive => write!(
+                    out,
+                    "gets {v:.0} V: heats slowly at {:.0} % power",
+                    f * f * 100.0
+                ),
                 Model::Lamp => write!(out, "gets {v:.0} V ({:.0} %): dim", f * 100.0),
                 Model::Motor => write!(
                     out,
@@ -303,6 +455,35 @@ impl std::fmt::Display for Why {
                 ),
                 _ => write!(out, "gets {v:.0} V ({:.0} %): under-voltage", f * 100.0),
             },
+            Why::SystemBand {
+                v,
+                standard,
+                band,
+                nominal,
+                high,
+            } => {
+                let side = if high { "high" } else { "low" };
+                match band {
+                    Band::A => write!(
+                        out,
+                        "gets {v:.0} V: within {} Range A for {nominal:.0} V",
+                        standard.name()
+                    ),
+                    Band::B if standard == Standard::AnsiC84_1 => write!(
+                        out,
+                        "gets {v:.0} V: {side}, within ANSI C84.1 Range B for {nominal:.0} V; the service needs attention"
+                    ),
+                    Band::B => write!(
+                        out,
+                        "gets {v:.0} V: {side}, outside IEC 60038's ±10 % for {nominal:.0} V but within the installation's allowance"
+                    ),
+                    Band::Outside => write!(
+                        out,
+                        "gets {v:.0} V: {side}, outside the {} range for {nominal:.0} V",
+                        standard.name()
+                    ),
+                }
+            }
         }
     }
 }
@@ -317,43 +498,100 @@ fn life_left(f: f64) -> String {
     }
 }
 
-fn limits_of(model: Model) -> KindLimits {
-    match model {
-        Model::Resistive => RESISTIVE,
-        Model::Lamp => LAMP,
-        Model::Motor => MOTOR,
-        _ => IMPEDANCE,
+/// What a classification is judged against: the system's standard and the nominal voltage of the
+/// appliance's connection (line to neutral, or line to line).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Context {
+    pub standard: Standard,
+    pub nominal: f64,
+}
+
+impl Context {
+    /// The context of `load` on `system`.
+    pub fn of(system: &System, load: &Load) -> Context {
+        let nominal = match load.connection() {
+            crate::loads::Connection::ToNeutral(_) => system.volts_to_neutral(),
+            crate::loads::Connection::Across(..) => system.volts_line_to_line(),
+        };
+        Context {
+            standard: Standard::of(system),
+            nominal,
+        }
     }
 }
 
-/// The outcome for a load at terminal voltage `volts` (its own terminals, after any branch drop) in
-/// `state`, with the facts behind it. `Why` prints the one-line reason.
-pub fn classify(load: &Load, volts: f64, state: State, on: bool) -> (Outcome, Why) {
+/// Which rule decided an outcome.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Decider {
+    /// The appliance is off.
+    Switch,
+    /// The appliance's own nameplate tolerance or behaviour (stall, drop-out, input range).
+    Nameplate,
+    /// The system's voltage band (ANSI C84.1 or IEC 60038) at its nominal voltage.
+    SystemBand,
+}
+
+/// The outcome for a load at terminal voltage `volts` (its own terminals, after any branch drop)
+/// in `state`, with the facts behind it and the rule that decided. `Why` prints the one-line
+/// reason.
+pub fn classify(
+    load: &Load,
+    volts: f64,
+    state: State,
+    on: bool,
+    ctx: Context,
+) -> (Outcome, Why, Decider) {
     if !on {
-        return (Outcome::Off, Why::Off);
+        if volts > OFF_LIVE_MULTIPLE * load.rated_v() {
+            return (Outcome::Off, Why::OffLive { v: volts }, Decider::Switch);
+        }
+        return (Outcome::Off, Why::Off, Decider::Switch);
     }
+    let (own, why) = nameplate(load, volts, state);
+    if matches!(state, State::Stalled | State::DroppedOut) || matches!(why, Why::NoVoltage { .. }) {
+        return (own, why, Decider::Nameplate);
+    }
+    let lighting = matches!(load.model(), Model::Lamp);
+    let band = utilization_band(ctx.standard, volts, ctx.nominal, lighting);
+    let system = match band {
+        Band::A => Outcome::Normal,
+        Band::B => Outcome::Marginal,
+        Band::Outside if volts > ctx.nominal => Outcome::OverVoltage,
+        Band::Outside => Outcome::UnderVoltage,
+    };
+    if system.severity() > own.severity() {
+        (
+            system,
+            Why::SystemBand {
+                v: volts,
+                standard: ctx.standard,
+                band,
+                nominal: ctx.nominal,
+                high: volts > ctx.nominal,
+            },
+            Decider::SystemBand,
+        )
+    } else {
+        (own, why, Decider::Nameplate)
+    }
+}
+
+/// The outcome on the appliance's own nameplate alone.
+fn nameplate(load: &Load, volts: f64, state: State) -> (Outcome, Why) {
     let f = volts / load.rated_v();
     let v = volts;
-    let lighting = matches!(load.model(), Model::Lamp);
-    let ua_min = if lighting {
-        ansi::UTILIZATION_A.0
-    } else {
-        ansi::UTILIZATION_A_MIN_NONLIGHTING
-    };
-    let ub_min = if lighting {
-        ansi::UTILIZATION_B.0
-    } else {
-        ansi::UTILIZATION_B_MIN_NONLIGHTING
-    };
-    let in_a = f >= ua_min && f <= ansi::UTILIZATION_A.1;
-    let in_b = f >= ub_min && f <= ansi::UTILIZATION_B.1;
     match (load.model(), state) {
+        (Model::Motor, State::Stalled) if f < MOTOR_FEEBLE_FRACTION => {
+            (Outcome::Stall, Why::StalledFeeble { v })
+        }
         (Model::Motor, State::Stalled)
             if f < crate::loads::MOTOR_BREAKDOWN_TORQUE.sqrt().recip() =>
         {
             (Outcome::Stall, Why::StalledLow { v, f })
         }
         (Model::Motor, State::Stalled) => (Outcome::Stall, Why::StalledCollapse { v }),
+        (_, _) if f < NO_VOLTAGE_FRACTION => (Outcome::UnderVoltage, Why::NoVoltage { v }),
         (Model::Electronic { min_v, .. }, State::DroppedOut) if volts < min_v => {
             (Outcome::UnderVoltage, Why::DroppedLow { v, min_v })
         }
@@ -369,30 +607,18 @@ pub fn classify(load: &Load, volts: f64, state: State, on: bool) -> (Outcome, Wh
                 (Outcome::Normal, Why::InsideInput { v, min_v, max_v })
             }
         }
+        (Model::Lamp, _) if f < LAMP_DARK_FRACTION => (Outcome::UnderVoltage, Why::Dark { v, f }),
         (model, _) => {
-            let limits = limits_of(model);
-            if in_a {
-                return (Outcome::Normal, Why::RangeA { v, f });
-            }
-            if f > 1.0 {
-                if f >= limits.damage_above {
-                    return (Outcome::LikelyDamage, Why::Damage { model, v, f });
-                }
-                if in_b && !(model == Model::Motor && f > 1.0 + MOTOR_TOLERANCE) {
-                    return (Outcome::Marginal, Why::HighRangeB { v, f });
-                }
-                return (Outcome::OverVoltage, Why::Over { model, v, f });
-            }
-            // A motor below NEMA's −10 % runs hot at rated load even inside Range B.
-            let ok = if model == Model::Motor {
-                f >= 1.0 - MOTOR_TOLERANCE
+            let t = tolerance_of(model);
+            if f >= t.damage_above {
+                (Outcome::LikelyDamage, Why::Damage { model, v, f })
+            } else if f > t.high {
+                (Outcome::OverVoltage, Why::Over { model, v, f })
+            } else if f < t.low {
+                (Outcome::UnderVoltage, Why::Under { model, v, f })
             } else {
-                in_b
-            };
-            if ok {
-                return (Outcome::Marginal, Why::LowRangeB { v, f });
+                (Outcome::Normal, Why::Rated { v, f })
             }
-            (Outcome::UnderVoltage, Why::Under { model, v, f })
         }
     }
 }

@@ -31,6 +31,8 @@ use serde::de::DeserializeOwned;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 use serde_json::Value;
 
+pub use crate::fields::Unknown;
+
 /// The job format version this engine writes and reads.
 pub const JOB_VERSION: u32 = 1;
 
@@ -113,6 +115,9 @@ pub struct JobFile {
     /// Shared-neutral (multiwire) branch circuits that loads may name.
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub multiwire: Raw<Vec<Raw<MultiwireFile>>>,
+    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// A shared-neutral (multiwire) branch circuit: its id and its neutral conductor.
@@ -132,6 +137,9 @@ pub struct MultiwireFile {
     /// The NEC Table 310.16 temperature column, °C: 60, 75 or 90 (60 if absent).
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub column_c: Raw<f64>,
+    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// `system`: what the utility delivers at the service.
@@ -146,6 +154,9 @@ pub struct SystemFile {
     pub frequency_hz: Raw<f64>,
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub phases: Raw<u32>,
+    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// `transformer`: the distribution transformer feeding the service.
@@ -164,6 +175,12 @@ pub struct TransformerFile {
     pub tap_pct: Raw<f64>,
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub supply_v: Raw<f64>,
+    /// `single-phase`, `delta-wye` or `wye-wye`.
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub connection: Raw<String>,
+    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// `service`: the conductors from the transformer to the panel.
@@ -174,6 +191,9 @@ pub struct ServiceFile {
     pub hot: Raw<ConductorFile>,
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub neutral: Raw<ConductorFile>,
+    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// A conductor run: a table size and length, or an explicit whole-run impedance.
@@ -199,6 +219,9 @@ pub struct ConductorFile {
     pub r_ohm: Raw<f64>,
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub x_ohm: Raw<f64>,
+    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// `neutral`: the state of the service neutral.
@@ -211,6 +234,9 @@ pub struct NeutralFile {
     pub ohms: Raw<f64>,
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub earth_return_ohms: Raw<f64>,
+    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// One appliance or load.
@@ -250,6 +276,9 @@ pub struct LoadFile {
     /// The id of the shared-neutral branch circuit this load is on.
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub multiwire: Raw<String>,
+    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// Why a text could not be read as a job at all (before any field is looked at).

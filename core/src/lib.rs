@@ -1,22 +1,26 @@
 //! Tapline's electrical engine: what every appliance on a split-phase or wye service sees when the
 //! neutral is intact, loose or open.
 //!
-//! The pipeline, one module per step: [`job`] (the JSON-facing input) → [`validate`] (types that
-//! cannot be invalid) → [`network`] (the circuit) → [`solve`] (phasor nodal analysis) →
-//! [`classify`] (outcome bands with their sources) → [`report`] (the JSON-facing output).
-//! Supporting modules hold the physics: [`system`], [`transformer`], [`conductors`], [`loads`],
-//! [`library`]; [`whatif`] runs the neutral what-if and sweep; [`tools`] holds the field tools
-//! (diagnosis from meter readings, panel balancing, shared-neutral circuits).
+//! The pipeline, one module per step: [`job`] (the JSON-facing input) → [`validate`] (with the
+//! shared field checker [`fields`]) into [`validated`] (types that cannot be invalid) →
+//! [`network`] (the circuit) → [`solve`] (phasor nodal analysis) → [`classify`] (outcome bands with
+//! their sources) and [`multiwire`] (shared-neutral circuits) → [`report`] (the JSON-facing
+//! output, checked by [`finite`]). Supporting modules hold the physics: [`system`],
+//! [`transformer`], [`conductors`], [`loads`], [`library`]; [`whatif`] runs the neutral what-if
+//! and sweep; [`tools`] holds the field tools (diagnosis from meter readings, panel balancing).
 //!
 //! This crate does no file, network or browser IO.
 
 pub mod classify;
 pub mod conductors;
 pub mod demo;
+pub mod fields;
+pub mod finite;
 pub mod job;
 pub mod library;
 pub mod linalg;
 pub mod loads;
+pub mod multiwire;
 pub mod network;
 pub mod report;
 pub mod solve;
@@ -24,10 +28,11 @@ pub mod system;
 pub mod tools;
 pub mod transformer;
 pub mod validate;
+pub mod validated;
 pub mod whatif;
 
+use fields::Problem;
 use job::JobFile;
-use validate::Problem;
 
 /// Everything that can go wrong between a job's text and its report.
 #[derive(Clone, Debug, PartialEq)]

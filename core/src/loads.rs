@@ -37,6 +37,17 @@ pub const LOCKED_ROTOR_PF: f64 = 0.35;
 /// a resistor taking this fraction of rated power at rated voltage (common practice, no source).
 pub const ELECTRONIC_STANDBY_FRACTION: f64 = 0.01;
 
+/// A stalled motor restarts once its voltage is back to 90 % of rated: NEMA MG 1 §12.44 has a
+/// motor operate successfully within ±10 % of rated voltage (from memory), so 90 % is the lowest
+/// voltage at which starting is assured. Against the stall point of 1/√2 ≈ 71 % this is the
+/// motor's hysteresis.
+pub const MOTOR_RESTART_FRACTION: f64 = 0.90;
+
+/// A supply that dropped out restarts once its voltage is this fraction of its rating above the
+/// bottom of its input range: switched-mode controllers turn on a few percent above the voltage
+/// at which they turn off (under-voltage lockout hysteresis; common practice, no source).
+pub const ELECTRONIC_RESTART_MARGIN: f64 = 0.05;
+
 /// Default input range of an electronic supply as fractions of rated voltage when the job gives
 /// none: 75 % to 115 % (common practice, no source; "100–240 V" supplies state their own range).
 pub const ELECTRONIC_DEFAULT_RANGE: (f64, f64) = (0.75, 1.15);
@@ -115,9 +126,9 @@ impl Model {
     }
 }
 
-/// Operating state of a load after a solve. Stalling and dropping out are one-way within a solve:
-/// a stalled motor draws more current and pulls the voltage further down, and a real one stays
-/// stalled until its thermal protector opens; a dropped-out supply is reported as off.
+/// Operating state of a load after a solve. A stalled motor draws locked-rotor current and pulls
+/// the voltage further down; a dropped-out supply draws only standby power. Either runs again
+/// when its voltage comes back above its restart threshold ([`Load::restart_v`]).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum State {
     Running,
@@ -135,7 +146,9 @@ pub struct Load {
     pub(crate) rated_v: f64,
     pub(crate) power_factor: f64,
     pub(crate) on: bool,
-    /// The branch circuit's loop (outgoing plus return conductor), or an ideal conductor.
+    /// The branch circuit in series with the load: its loop (outgoing plus return conductor), or,
+    /// for a load on a shared-neutral circuit, its hot conductor alone (the shared neutral is a
+    /// branch of the network). `None` when the job gives none.
     pub(crate) branch: Option<Conductor>,
     /// (order, fraction of fundamental current) for odd orders 3..=49.
     pub(crate) harmonics: Vec<(u32, f64)>,
@@ -206,6 +219,18 @@ impl Load {
         match self.model {
             Model::Motor => Some(self.rated_v / MOTOR_BREAKDOWN_TORQUE.sqrt()),
             Model::Electronic { min_v, .. } => Some(min_v),
+            _ => None,
+        }
+    }
+
+    /// The voltage at which a load that stalled or dropped out runs again, volts: above its low
+    /// limit by the hysteresis of [`MOTOR_RESTART_FRACTION`] or [`ELECTRONIC_RESTART_MARGIN`].
+    pub fn restart_v(&self) -> Option<f64> {
+        match self.model {
+            Model::Motor => Some(MOTOR_RESTART_FRACTION * self.rated_v),
+            Model::Electronic { min_v, .. } => {
+                Some(min_v + ELECTRONIC_RESTART_MARGIN * self.rated_v)
+            }
             _ => None,
         }
     }

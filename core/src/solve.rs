@@ -1,14 +1,16 @@
 //! The solver: nodal analysis in complex numbers at the fundamental, with an iteration for
 //! voltage-dependent loads, then a linear solve for each harmonic order that electronic loads inject.
 //!
-//! At each step the panel node voltages V solve Y·V = I, where Y holds the source admittance
-//! Y_s = Z_s⁻¹ on the hot bars, the neutral path's admittance on the neutral bar, and each load's
-//! admittance (in series with its branch conductors) between its two nodes; I holds the Norton
-//! currents Y_s·E of the source. Nodes held at a fixed voltage (a stiff source, a neutral of zero
-//! impedance) are moved to the right-hand side. A solve either converges or returns a
-//! [`SolveError`]; it never returns NaN.
+//! At each step the node voltages V solve Y·V = I, where Y holds the source admittance
+//! Y_s = Z_s⁻¹ on the hot bars, the neutral conductor's and the earth path's admittances from the
+//! neutral bar to the reference, each shared neutral between its node and the neutral bar, and
+//! each load's admittance (in series with its branch conductors) between its two nodes; I holds
+//! the Norton currents Y_s·E of the source and, at harmonic orders, the loads' harmonic currents.
+//! Nodes held at a fixed voltage (a stiff source, a neutral of zero impedance) are moved to the
+//! right-hand side; nodes with no path to either are floating and have no voltage. A solve either
+//! converges or returns a [`SolveError`]; it never returns NaN.
 
-use crate::linalg::{solve_dense, MAX_NODES};
+use crate::linalg::{div, inv, solve_in_place};
 use crate::loads::{Model, State};
 use crate::network::{at_harmonic, Network, NeutralPath, Node, Source, NEUTRAL_INDEX};
 use num_complex::Complex64;
@@ -20,14 +22,18 @@ pub const MAX_ITERATIONS: usize = 200;
 /// of the system's line-to-neutral voltage.
 pub const TOLERANCE: f64 = 1e-9;
 
+const ZERO: Complex64 = Complex64::new(0.0, 0.0);
+
 /// Why a solve failed.
 #[derive(Clone, Debug, PartialEq)]
 pub enum SolveError {
-    /// A node has no path to a defined voltage (for example an electronic load alone on an open
-    /// neutral at a harmonic frequency).
+    /// A node has no path to a defined voltage.
     Singular,
     /// The load iteration did not settle.
     NoConvergence { iterations: usize },
+    /// A figure of the report came out infinite or not a number (named by its path); the report
+    /// is withheld rather than shown wrong.
+    NotFinite { path: String },
 }
 
 impl std::fmt::Display for SolveError {
@@ -37,6 +43,10 @@ impl std::fmt::Display for SolveError {
             SolveError::NoConvergence { iterations } => write!(
                 f,
                 "the load voltages did not settle after {iterations} iterations; the loads may be more than this service can supply"
+            ),
+            SolveError::NotFinite { path } => write!(
+                f,
+                "{path} came out infinite or undefined; the inputs are beyond what this engine can compute"
             ),
         }
     }
@@ -48,9 +58,9 @@ impl std::error::Error for SolveError {}
 /// the lower-numbered leg to the higher).
 #[derive(Clone, Debug, PartialEq)]
 pub struct LoadResult {
-    /// Voltage between the load's two panel bars; `None` when one bar floats.
+    /// Voltage between the load's two nodes; `None` when one of them floats.
     pub panel_v: Option<Complex64>,
-    /// Voltage at the appliance, after its branch conductors; `None` when a bar floats.
+    /// Voltage at the appliance, after its branch conductors; `None` when a node floats.
     pub terminal_v: Option<Complex64>,
     /// Fundamental current, amperes (zero when off).
     pub current: Complex64,
@@ -66,30 +76,43 @@ impl LoadResult {
     }
 }
 
-/// Currents at one harmonic order.
+/// Currents and the neutral bar's voltage at one harmonic order.
 #[derive(Clone, Debug, PartialEq)]
 pub struct HarmonicResult {
     pub order: u32,
     pub leg_current: [Complex64; 3],
+    /// In the service neutral conductor, panel to source.
     pub neutral_current: Complex64,
+    /// In the earth path, panel to source.
+    pub earth_current: Complex64,
+    /// The panel neutral bar's voltage to the transformer neutral; `None` when it floats.
+    pub neutral_v: Option<Complex64>,
+    /// In each shared neutral, from its circuit towards the panel neutral bar.
+    pub shared_current: Vec<Complex64>,
 }
 
 /// The solved network.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Solution {
-    /// Panel bar voltages to the source neutral (L1, L2, L3, N); `None` for a floating bar.
-    pub node_v: [Option<Complex64>; MAX_NODES],
+    /// Node voltages to the source neutral (L1, L2, L3, N, then each shared neutral's far end);
+    /// `None` for a floating node or an absent leg.
+    pub node_v: Vec<Option<Complex64>>,
     /// Fundamental current in each hot leg, source to panel.
     pub leg_current: [Complex64; 3],
-    /// Fundamental current in the service neutral, panel to source (zero when open).
+    /// Fundamental current in the service neutral conductor, panel to source.
     pub neutral_current: Complex64,
-    /// Fundamental current through the earth return when the neutral is open.
+    /// Fundamental current in the earth path, panel to source.
     pub earth_current: Complex64,
+    /// Fundamental current in each shared neutral, from its circuit towards the neutral bar.
+    pub shared_current: Vec<Complex64>,
     pub loads: Vec<LoadResult>,
     pub harmonics: Vec<HarmonicResult>,
-    /// True when electronic loads carry harmonics but the neutral is open, so they were not solved.
-    pub harmonics_skipped: bool,
     pub iterations: usize,
+}
+
+fn rss(fundamental: Complex64, harmonics: impl Iterator<Item = Complex64>) -> f64 {
+    let h: f64 = harmonics.map(|c| c.norm_sqr()).sum();
+    (fundamental.norm_sqr() + h).sqrt()
 }
 
 impl Solution {
@@ -100,26 +123,50 @@ impl Solution {
 
     /// Total rms current of a leg including harmonics, amperes.
     pub fn leg_rms(&self, leg_index: usize) -> f64 {
-        let h: f64 = self
-            .harmonics
-            .iter()
-            .map(|r| r.leg_current[leg_index].norm_sqr())
-            .sum();
-        (self.leg_current[leg_index].norm_sqr() + h).sqrt()
+        rss(
+            self.leg_current[leg_index],
+            self.harmonics.iter().map(|r| r.leg_current[leg_index]),
+        )
     }
 
-    /// Total rms current of the service neutral including harmonics, amperes.
+    /// Total rms current of the service neutral conductor including harmonics, amperes.
     pub fn neutral_rms(&self) -> f64 {
-        let h: f64 = self
-            .harmonics
-            .iter()
-            .map(|r| r.neutral_current.norm_sqr())
-            .sum();
-        (self.neutral_current.norm_sqr() + h).sqrt()
+        rss(
+            self.neutral_current,
+            self.harmonics.iter().map(|r| r.neutral_current),
+        )
+    }
+
+    /// Total rms current of the earth path including harmonics, amperes.
+    pub fn earth_rms(&self) -> f64 {
+        rss(
+            self.earth_current,
+            self.harmonics.iter().map(|r| r.earth_current),
+        )
+    }
+
+    /// Total rms current of shared neutral `k` including harmonics, amperes.
+    pub fn shared_rms(&self, k: usize) -> f64 {
+        rss(
+            self.shared_current[k],
+            self.harmonics.iter().map(|r| r.shared_current[k]),
+        )
+    }
+
+    /// Root-sum-square of the neutral bar's harmonic voltages, volts (`None` when it floats).
+    pub fn neutral_harmonic_v(&self) -> Option<f64> {
+        let mut sq = 0.0;
+        for h in &self.harmonics {
+            sq += h.neutral_v?.norm_sqr();
+        }
+        Some(sq.sqrt())
     }
 }
 
-/// A two-terminal admittance or current source between node indices.
+/// Marks a node that stands for the reference (the transformer neutral) in an [`Element`].
+const REFERENCE: usize = usize::MAX;
+
+/// A two-terminal admittance between node indices (`b` may be [`REFERENCE`]).
 struct Element {
     a: usize,
     b: usize,
@@ -133,118 +180,193 @@ struct Injection {
     i: Complex64,
 }
 
+/// Buffers reused between solves of one network.
+struct Workspace {
+    y: Vec<Complex64>,
+    rhs: Vec<Complex64>,
+    a: Vec<Complex64>,
+    b: Vec<Complex64>,
+    unknown: Vec<usize>,
+    grounded: Vec<bool>,
+    reach: Vec<bool>,
+    stack: Vec<usize>,
+}
+
+impl Workspace {
+    fn new(n: usize) -> Workspace {
+        Workspace {
+            y: vec![ZERO; n * n],
+            rhs: vec![ZERO; n],
+            a: Vec::with_capacity(n * n),
+            b: Vec::with_capacity(n),
+            unknown: Vec::with_capacity(n),
+            grounded: vec![false; n],
+            reach: vec![false; n],
+            stack: Vec::with_capacity(n),
+        }
+    }
+}
+
+/// The neutral conductor's admittance at order `h`, zero when open.
+fn neutral_y(net: &Network, h: u32) -> Complex64 {
+    match net.neutral() {
+        NeutralPath::Conductor(z) => inv(at_harmonic(z, h)),
+        _ => ZERO,
+    }
+}
+
+/// The earth path's admittance (frequency-independent), zero without one.
+fn earth_y(net: &Network) -> Complex64 {
+    net.earth_ohms()
+        .map(|r| Complex64::new(1.0 / r, 0.0))
+        .unwrap_or(ZERO)
+}
+
 /// Solves the node voltages at harmonic order `h` (1 = fundamental, where the source EMFs act).
+// The admittance matrix is stamped by node index; indices read more clearly than iterators here.
+#[allow(clippy::needless_range_loop)]
 fn nodal(
     net: &Network,
     h: u32,
     elements: &[Element],
     injections: &[Injection],
-) -> Result<[Option<Complex64>; MAX_NODES], SolveError> {
+    ws: &mut Workspace,
+) -> Result<Vec<Option<Complex64>>, SolveError> {
+    let n = net.node_count();
     let legs = net.leg_count();
-    let zero = Complex64::new(0.0, 0.0);
-    let mut fixed: [Option<Complex64>; MAX_NODES] = [None; MAX_NODES];
-    let mut present = [false; MAX_NODES];
-    for p in present.iter_mut().take(legs) {
-        *p = true;
-    }
-    let source_y = match net.source() {
+    let mut fixed: Vec<Option<Complex64>> = vec![None; n];
+    ws.y.iter_mut().for_each(|z| *z = ZERO);
+    ws.rhs.iter_mut().for_each(|z| *z = ZERO);
+    ws.grounded.iter_mut().for_each(|g| *g = false);
+    match net.source() {
         Source::Stiff => {
             for (k, f) in fixed.iter_mut().enumerate().take(legs) {
-                *f = Some(if h == 1 { net.emf()[k] } else { zero });
+                *f = Some(if h == 1 { net.emf()[k] } else { ZERO });
             }
-            None
         }
-        Source::Thevenin { .. } if h == 1 => Some(net.source_y1.ok_or(SolveError::Singular)?),
-        Source::Thevenin { .. } => Some(net.source_y_at(h).ok_or(SolveError::Singular)?),
-    };
-    let touches_n = elements
-        .iter()
-        .any(|e| e.b == NEUTRAL_INDEX || e.a == NEUTRAL_INDEX)
-        || injections
-            .iter()
-            .any(|e| e.b == NEUTRAL_INDEX || e.a == NEUTRAL_INDEX);
-    let neutral_y = match net.neutral() {
-        NeutralPath::Solid => {
-            fixed[NEUTRAL_INDEX] = Some(zero);
-            None
-        }
-        NeutralPath::Conductor(z) => Some(at_harmonic(z, h).inv()),
-        NeutralPath::Open { earth_ohms } => earth_ohms.map(|r| Complex64::new(1.0 / r, 0.0)),
-    };
-    present[NEUTRAL_INDEX] = fixed[NEUTRAL_INDEX].is_some() || neutral_y.is_some() || touches_n;
-
-    let mut y = [[zero; MAX_NODES]; MAX_NODES];
-    let mut rhs = [zero; MAX_NODES];
-    if let Some(ys) = source_y {
-        for i in 0..legs {
-            for j in 0..legs {
-                y[i][j] += ys[i][j];
-                if h == 1 {
-                    rhs[i] += ys[i][j] * net.emf()[j];
+        Source::Thevenin { .. } => {
+            let ys = if h == 1 {
+                net.source_y1.ok_or(SolveError::Singular)?
+            } else {
+                net.source_y_at(h).ok_or(SolveError::Singular)?
+            };
+            for i in 0..legs {
+                ws.grounded[i] = true;
+                for j in 0..legs {
+                    ws.y[i * n + j] += ys[i][j];
+                    if h == 1 {
+                        ws.rhs[i] += ys[i][j] * net.emf()[j];
+                    }
                 }
             }
         }
     }
-    if let Some(yn) = neutral_y {
-        y[NEUTRAL_INDEX][NEUTRAL_INDEX] += yn;
+    let stamp = |ws: &mut Workspace, a: usize, b: usize, y: Complex64| {
+        ws.y[a * n + a] += y;
+        if b == REFERENCE {
+            ws.grounded[a] = true;
+        } else {
+            ws.y[b * n + b] += y;
+            ws.y[a * n + b] -= y;
+            ws.y[b * n + a] -= y;
+        }
+    };
+    match net.neutral() {
+        NeutralPath::Solid => fixed[NEUTRAL_INDEX] = Some(ZERO),
+        NeutralPath::Conductor(_) => stamp(ws, NEUTRAL_INDEX, REFERENCE, neutral_y(net, h)),
+        NeutralPath::Open => {}
+    }
+    if net.earth_ohms().is_some() {
+        stamp(ws, NEUTRAL_INDEX, REFERENCE, earth_y(net));
+    }
+    for (k, s) in net.shared().iter().enumerate() {
+        if !s.open && !s.is_solid() {
+            stamp(
+                ws,
+                Node::Shared(k).index(),
+                NEUTRAL_INDEX,
+                inv(at_harmonic(s.z, h)),
+            );
+        }
     }
     for e in elements {
-        y[e.a][e.a] += e.y;
-        y[e.b][e.b] += e.y;
-        y[e.a][e.b] -= e.y;
-        y[e.b][e.a] -= e.y;
+        stamp(ws, e.a, e.b, e.y);
     }
     for s in injections {
-        rhs[s.a] -= s.i;
-        rhs[s.b] += s.i;
+        ws.rhs[s.a] -= s.i;
+        ws.rhs[s.b] += s.i;
     }
 
-    let unknown: Vec<usize> = (0..MAX_NODES)
-        .filter(|&k| present[k] && fixed[k].is_none())
-        .collect();
-    let mut a = [[zero; MAX_NODES]; MAX_NODES];
-    let mut b = [zero; MAX_NODES];
-    for (r, &i) in unknown.iter().enumerate() {
-        b[r] = rhs[i];
-        for (k, f) in fixed.iter().enumerate() {
-            if let Some(v) = f {
-                b[r] -= y[i][k] * v;
-            }
-        }
-        for (c, &j) in unknown.iter().enumerate() {
-            a[r][c] = y[i][j];
+    // A node has a voltage when a chain of elements joins it to the source or the reference.
+    ws.reach.iter_mut().for_each(|r| *r = false);
+    ws.stack.clear();
+    for k in 0..n {
+        if fixed[k].is_some() || ws.grounded[k] {
+            ws.reach[k] = true;
+            ws.stack.push(k);
         }
     }
-    let x = solve_dense(&mut a, &mut b, unknown.len()).ok_or(SolveError::Singular)?;
+    while let Some(i) = ws.stack.pop() {
+        for j in 0..n {
+            if !ws.reach[j] && j != i && ws.y[i * n + j] != ZERO {
+                ws.reach[j] = true;
+                ws.stack.push(j);
+            }
+        }
+    }
+    ws.unknown.clear();
+    ws.unknown
+        .extend((0..n).filter(|&k| ws.reach[k] && fixed[k].is_none()));
+    let m = ws.unknown.len();
+    ws.a.clear();
+    ws.b.clear();
+    for &i in &ws.unknown {
+        let mut r = ws.rhs[i];
+        for (k, f) in fixed.iter().enumerate() {
+            if let Some(v) = f {
+                r -= ws.y[i * n + k] * v;
+            }
+        }
+        ws.b.push(r);
+        for &j in &ws.unknown {
+            ws.a.push(ws.y[i * n + j]);
+        }
+    }
+    solve_in_place(&mut ws.a, &mut ws.b, m).ok_or(SolveError::Singular)?;
     let mut v = fixed;
-    for (r, &i) in unknown.iter().enumerate() {
-        v[i] = Some(x[r]);
+    for (r, &i) in ws.unknown.iter().enumerate() {
+        v[i] = Some(ws.b[r]);
     }
     Ok(v)
 }
 
-/// Equivalent admittance of a load admittance `y` in series with its branch loop `zb`:
+/// Equivalent admittance of a load admittance `y` in series with its branch `zb`:
 /// y_eq = y / (1 + zb·y).
 fn with_branch(y: Complex64, zb: Complex64) -> Complex64 {
     // Most loads have no branch conductors given; skip the division for them.
-    if zb.re == 0.0 && zb.im == 0.0 {
+    if zb == ZERO {
         y
     } else {
-        y / (Complex64::new(1.0, 0.0) + zb * y)
+        div(y, Complex64::new(1.0, 0.0) + zb * y)
     }
 }
 
-/// The appliance's own voltage from the voltage across its panel bars: V_t = V / (1 + Z_b·y).
+/// The appliance's own voltage from the voltage across its two nodes: V_t = V / (1 + Z_b·y).
 fn at_terminals(vp: Complex64, zb: Complex64, y: Complex64) -> Complex64 {
-    if zb.re == 0.0 && zb.im == 0.0 {
+    if zb == ZERO {
         vp
     } else {
-        vp / (Complex64::new(1.0, 0.0) + zb * y)
+        div(vp, Complex64::new(1.0, 0.0) + zb * y)
     }
 }
 
-fn pair(v: &[Option<Complex64>; MAX_NODES], a: Node, b: Node) -> Option<Complex64> {
-    Some(v[a.index()]? - v[b.index()]?)
+fn pair(v: &[Option<Complex64>], a: usize, b: usize) -> Option<Complex64> {
+    Some(v[a]? - v[b]?)
+}
+
+/// A load's two node indices, with a negligible shared neutral folded into the neutral bar.
+fn ends(net: &Network, p: &crate::network::Placed) -> (usize, usize) {
+    (net.resolve(p.a).index(), net.resolve(p.b).index())
 }
 
 /// Solves a network.
@@ -273,90 +395,141 @@ pub fn solve_fundamental(net: &Network) -> Result<Solution, SolveError> {
     solve_with(net, false)
 }
 
+/// How one set of load states failed to settle.
+enum Unsettled {
+    Singular,
+    /// The iteration did not converge; the terminal voltages it last reached.
+    Collapse {
+        iterations: usize,
+        last_vt: Vec<Option<f64>>,
+    },
+}
+
+/// The low state a constant-power load falls to: a motor stalls, a supply drops out.
+fn low_state(model: Model) -> State {
+    match model {
+        Model::Motor => State::Stalled,
+        _ => State::DroppedOut,
+    }
+}
+
+/// The running load whose demand the supply cannot meet, largest first: among the running
+/// constant-power loads below their low limit at `vt` (all of them when none is), the one of
+/// largest rated apparent power, ties to the lower voltage. The list's order never decides.
+fn gives_way(net: &Network, states: &[State], vt: &[Option<f64>], all: bool) -> Option<usize> {
+    let candidates = |only_below: bool| {
+        net.loads()
+            .iter()
+            .enumerate()
+            .filter(|(k, p)| {
+                p.load.is_on() && states[*k] == State::Running && p.load.low_limit_v().is_some()
+            })
+            .filter(move |(k, p)| {
+                !only_below
+                    || match (vt[*k], p.load.low_limit_v()) {
+                        (Some(v), Some(limit)) => v < limit * (1.0 - 1e-9),
+                        (None, _) => true,
+                        _ => false,
+                    }
+            })
+            .max_by(|(i, a), (j, b)| {
+                let sa = a.load.rated_complex_power().norm();
+                let sb = b.load.rated_complex_power().norm();
+                sa.total_cmp(&sb).then_with(|| {
+                    let vi = vt[*i].unwrap_or(0.0) / a.load.rated_v();
+                    let vj = vt[*j].unwrap_or(0.0) / b.load.rated_v();
+                    vj.total_cmp(&vi)
+                })
+            })
+            .map(|(k, _)| k)
+    };
+    candidates(true).or_else(|| if all { candidates(false) } else { None })
+}
+
 fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
     let n = net.loads().len();
+    let mut ws = Workspace::new(net.node_count());
     let mut states = vec![State::Running; n];
     let mut y: Vec<Complex64> = net
         .loads()
         .iter()
         .map(|p| p.load.admittance(p.load.rated_v(), State::Running))
         .collect();
+    // Each load can restart at most once after giving way, so this many passes always suffice.
+    let mut restarted = vec![false; n];
     let mut total_iterations = 0;
-    // Each pass can only move loads into their low state, so at most n + 1 passes are needed.
-    for _ in 0..=n + 1 {
-        let (v, iterations) = match iterate(net, &states, &mut y) {
+    for _ in 0..3 * n + 3 {
+        let (v, iterations) = match iterate(net, &states, &mut y, &mut ws) {
             Ok(done) => done,
-            Err(SolveError::NoConvergence { iterations }) => {
+            Err(Unsettled::Singular) => return Err(SolveError::Singular),
+            Err(Unsettled::Collapse {
+                iterations,
+                last_vt,
+            }) => {
                 // A constant-power load the service cannot supply has no steady state: its voltage
-                // keeps sinking (voltage collapse). Physically the weakest such load stalls or
-                // drops out, so move it to its low state and solve again; with none left to move
-                // the failure stands.
+                // keeps sinking (voltage collapse). Physically the largest load whose demand cannot
+                // be met stalls or drops out first; solve again without it.
                 total_iterations += iterations;
-                if !collapse_weakest(net, &mut states, &mut y) {
+                let Some(k) = gives_way(net, &states, &last_vt, true) else {
                     return Err(SolveError::NoConvergence {
                         iterations: total_iterations,
                     });
-                }
+                };
+                states[k] = low_state(net.loads()[k].load.model());
+                y[k] = net.loads()[k].load.admittance(0.0, states[k]);
                 continue;
             }
-            Err(e) => return Err(e),
         };
         total_iterations += iterations;
+        let vt: Vec<Option<f64>> = net
+            .loads()
+            .iter()
+            .enumerate()
+            .map(|(k, p)| {
+                let (a, b) = ends(net, p);
+                pair(&v, a, b).map(|vp| at_terminals(vp, p.branch, y[k]).norm())
+            })
+            .collect();
+        // Running loads below their limit give way all together (a set, so no order decides);
+        // any that could run once the others are gone restart below.
         let mut changed = false;
         for (k, p) in net.loads().iter().enumerate() {
-            if !p.load.is_on() || states[k] != State::Running {
-                continue;
-            }
-            let Some(limit) = p.load.low_limit_v() else {
-                continue;
+            let below = match (vt[k], p.load.low_limit_v()) {
+                (Some(v), Some(limit)) => v < limit * (1.0 - 1e-9),
+                _ => false,
             };
-            let vt = pair(&v, p.a, p.b).map(|vp| at_terminals(vp, p.branch, y[k]));
-            if vt.is_some_and(|vt| vt.norm() < limit * (1.0 - 1e-9)) {
-                states[k] = match p.load.model() {
-                    Model::Motor => State::Stalled,
-                    _ => State::DroppedOut,
-                };
+            if p.load.is_on() && states[k] == State::Running && below {
+                states[k] = low_state(p.load.model());
                 y[k] = p.load.admittance(0.0, states[k]);
                 changed = true;
             }
         }
+        if changed {
+            continue;
+        }
+        // A load that gave way restarts when its voltage, with it in its low state, is back above
+        // its restart threshold (the hysteresis of [`crate::loads::Load::restart_v`]).
+        for (k, p) in net.loads().iter().enumerate() {
+            let up = match (vt[k], p.load.restart_v()) {
+                (Some(v), Some(restart)) => v >= restart,
+                _ => false,
+            };
+            if p.load.is_on() && states[k] != State::Running && !restarted[k] && up {
+                states[k] = State::Running;
+                y[k] = p
+                    .characteristic
+                    .admittance(vt[k].unwrap_or(0.0), State::Running);
+                restarted[k] = true;
+                changed = true;
+            }
+        }
         if !changed {
-            return finish(net, &states, &y, v, total_iterations, harmonics);
+            return finish(net, &states, &y, v, total_iterations, harmonics, &mut ws);
         }
     }
     Err(SolveError::NoConvergence {
         iterations: total_iterations,
     })
-}
-
-/// Moves the running constant-power load with the lowest voltage relative to its rating (as last
-/// iterated, `y` holding its admittance) to its low state. Returns false when there is none.
-fn collapse_weakest(net: &Network, states: &mut [State], y: &mut [Complex64]) -> bool {
-    let weakest = net
-        .loads()
-        .iter()
-        .enumerate()
-        .filter(|(k, p)| {
-            p.load.is_on() && states[*k] == State::Running && p.load.low_limit_v().is_some()
-        })
-        .map(|(k, p)| {
-            // |V|² = P/G at constant power, so a larger conductance per watt means a lower voltage.
-            let rated = p.load.admittance(p.load.rated_v(), State::Running).norm();
-            (k, rated / y[k].norm())
-        })
-        .min_by(|a, b| a.1.total_cmp(&b.1));
-    match weakest {
-        Some((k, _)) => {
-            let p = &net.loads()[k];
-            states[k] = match p.load.model() {
-                Model::Motor => State::Stalled,
-                _ => State::DroppedOut,
-            };
-            y[k] = p.load.admittance(0.0, states[k]);
-            true
-        }
-        None => false,
-    }
 }
 
 /// The fixed-point iteration y ← load admittance at the voltage the last solve gave, damped when the
@@ -365,7 +538,8 @@ fn iterate(
     net: &Network,
     states: &[State],
     y: &mut [Complex64],
-) -> Result<([Option<Complex64>; MAX_NODES], usize), SolveError> {
+    ws: &mut Workspace,
+) -> Result<(Vec<Option<Complex64>>, usize), Unsettled> {
     let tol = TOLERANCE * net.system().volts_to_neutral();
     let mut last_vt: Vec<Option<Complex64>> = vec![None; y.len()];
     let mut last_change = f64::INFINITY;
@@ -382,13 +556,16 @@ fn iterate(
                 .iter()
                 .zip(y.iter())
                 .filter(|(p, _)| p.load.is_on())
-                .map(|(p, yk)| Element {
-                    a: p.a.index(),
-                    b: p.b.index(),
-                    y: with_branch(*yk, p.branch),
+                .map(|(p, yk)| {
+                    let (a, b) = ends(net, p);
+                    Element {
+                        a,
+                        b,
+                        y: with_branch(*yk, p.branch),
+                    }
                 }),
         );
-        let v = nodal(net, 1, &elements, &[])?;
+        let v = nodal(net, 1, &elements, &[], ws).map_err(|_| Unsettled::Singular)?;
         if !nonlinear {
             return Ok((v, iteration));
         }
@@ -398,7 +575,8 @@ fn iterate(
             if !p.load.is_on() || !p.load.model().is_nonlinear() {
                 continue;
             }
-            let Some(vp) = pair(&v, p.a, p.b) else {
+            let (a, b) = ends(net, p);
+            let Some(vp) = pair(&v, a, b) else {
                 continue;
             };
             let vt = at_terminals(vp, p.branch, y[k]);
@@ -418,7 +596,7 @@ fn iterate(
             if let (true, true, Some(vt)) =
                 (p.load.is_on(), p.load.model().is_nonlinear(), last_vt[k])
             {
-                let target = p.characteristic.admittance(vt.norm_sqr().sqrt(), states[k]);
+                let target = p.characteristic.admittance(vt.norm(), states[k]);
                 y[k] += (target - y[k]) * step;
             }
         }
@@ -427,9 +605,59 @@ fn iterate(
         }
         last_change = change;
     }
-    Err(SolveError::NoConvergence {
+    Err(Unsettled::Collapse {
         iterations: MAX_ITERATIONS,
+        last_vt: last_vt.iter().map(|v| v.map(|v| v.norm())).collect(),
     })
+}
+
+/// Adds a load's current to the hot legs it touches and to the current arriving at the neutral
+/// bar, or at its shared neutral (which carries it on to the bar; see [`shared_into_neutral`]).
+/// `a` and `b` are the load's nodes as placed, before a negligible shared neutral is folded away.
+fn add_branch_current(
+    legs: &mut [Complex64; 3],
+    into_neutral: &mut Complex64,
+    shared: &mut [Complex64],
+    a: Node,
+    b: Node,
+    i: Complex64,
+) {
+    for (node, sign) in [(a, 1.0), (b, -1.0)] {
+        match node {
+            Node::Hot(l) => legs[l.index()] += i * sign,
+            Node::Neutral => *into_neutral -= i * sign,
+            Node::Shared(k) => shared[k] -= i * sign,
+        }
+    }
+}
+
+/// What the shared neutrals bring to the neutral bar: each one's current, zero for one that is
+/// open (its loads are then in series and, by Kirchhoff's current law, sum to nothing).
+fn shared_into_neutral(net: &Network, shared: &mut [Complex64]) -> Complex64 {
+    let mut total = ZERO;
+    for (k, s) in net.shared().iter().enumerate() {
+        if s.open {
+            shared[k] = ZERO;
+        }
+        total += shared[k];
+    }
+    total
+}
+
+/// How the current arriving at the neutral bar divides between the neutral conductor and the
+/// earth path at order `h`: by their admittances from the bar's voltage, or all in the conductor
+/// when the bar is held solid.
+fn split_return(
+    net: &Network,
+    h: u32,
+    v_n: Option<Complex64>,
+    into_neutral: Complex64,
+) -> (Complex64, Complex64) {
+    match (net.neutral(), v_n) {
+        (NeutralPath::Solid, _) => (into_neutral, ZERO),
+        (_, Some(v)) => (v * neutral_y(net, h), v * earth_y(net)),
+        (_, None) => (ZERO, ZERO),
+    }
 }
 
 /// Currents at the fundamental, then the harmonic solves.
@@ -437,24 +665,33 @@ fn finish(
     net: &Network,
     states: &[State],
     y: &[Complex64],
-    v: [Option<Complex64>; MAX_NODES],
+    v: Vec<Option<Complex64>>,
     iterations: usize,
     harmonics: bool,
+    ws: &mut Workspace,
 ) -> Result<Solution, SolveError> {
-    let zero = Complex64::new(0.0, 0.0);
     let mut loads = Vec::with_capacity(y.len());
-    let mut leg_current = [zero; 3];
-    let mut into_neutral = zero;
+    let mut leg_current = [ZERO; 3];
+    let mut into_neutral = ZERO;
+    let mut shared_current = vec![ZERO; net.shared().len()];
     for (k, p) in net.loads().iter().enumerate() {
-        let panel_v = pair(&v, p.a, p.b);
+        let (a, b) = ends(net, p);
+        let panel_v = pair(&v, a, b);
         let (terminal_v, current) = match (p.load.is_on(), panel_v) {
             (true, Some(vp)) => {
                 let i = with_branch(y[k], p.branch) * vp;
                 (Some(vp - i * p.branch), i)
             }
-            (_, vp) => (vp, zero),
+            (_, vp) => (vp, ZERO),
         };
-        add_branch_current(&mut leg_current, &mut into_neutral, p.a, p.b, current);
+        add_branch_current(
+            &mut leg_current,
+            &mut into_neutral,
+            &mut shared_current,
+            p.a,
+            p.b,
+            current,
+        );
         loads.push(LoadResult {
             panel_v,
             terminal_v,
@@ -467,61 +704,55 @@ fn finish(
             },
         });
     }
-    let (neutral_current, earth_current) = match net.neutral() {
-        NeutralPath::Open { .. } => (zero, into_neutral),
-        _ => (into_neutral, zero),
-    };
+    into_neutral += shared_into_neutral(net, &mut shared_current);
+    let (neutral_current, earth_current) = split_return(net, 1, v[NEUTRAL_INDEX], into_neutral);
     let mut sol = Solution {
         node_v: v,
         leg_current,
         neutral_current,
         earth_current,
+        shared_current,
         loads,
         harmonics: Vec::new(),
-        harmonics_skipped: false,
         iterations,
     };
     if harmonics {
-        solve_harmonics(net, states, y, &mut sol)?;
+        solve_harmonics(net, states, y, &mut sol, ws)?;
     }
     Ok(sol)
 }
 
-fn add_branch_current(
-    legs: &mut [Complex64; 3],
-    into_neutral: &mut Complex64,
-    a: Node,
-    b: Node,
-    i: Complex64,
-) {
-    for (node, sign) in [(a, 1.0), (b, -1.0)] {
-        match node {
-            Node::Hot(l) => legs[l.index()] += i * sign,
-            Node::Neutral => *into_neutral -= i * sign,
-        }
-    }
-}
-
-/// Harmonic currents of electronic loads: each running electronic load is a current source of
-/// |I_h| = fraction·|I₁| at angle h·∠V (its current pulses sit on the voltage peaks), every other
-/// load is its fundamental impedance with reactance scaled by h, and the source EMF is zero.
-/// With an open neutral the electronic loads would interact with each other through the floating
-/// bar, which this linear model does not capture, so harmonics are skipped there and said so.
+/// Harmonic currents of electronic loads, each a Norton source: a current source of
+/// |I_h| = fraction·|I₁| at angle h·∠V_t (its current pulses sit on the voltage peaks) in parallel
+/// with the admittance it presents at its fundamental operating point as a parallel R–L,
+/// Y_h = G₁ − j·B₁/h. Into a stiff bus it draws exactly its spectrum; into a weak or open neutral
+/// the parallel admittance limits what it can push, as a real supply's input stage does. (The
+/// Norton form and its fundamental-frequency admittance are the usual representation of a load in
+/// distribution harmonic studies, e.g. OpenDSS's harmonic mode; from memory.) Every other load is
+/// its fundamental impedance with reactance scaled by h, and the source EMF is zero. Every order is
+/// solved in every neutral state.
 fn solve_harmonics(
     net: &Network,
     states: &[State],
     y: &[Complex64],
     sol: &mut Solution,
+    ws: &mut Workspace,
 ) -> Result<(), SolveError> {
-    let mut orders: Vec<u32> = net
+    let is_source: Vec<bool> = net
         .loads()
         .iter()
         .zip(states)
-        .filter(|(p, s)| {
+        .map(|(p, s)| {
             p.load.is_on()
-                && **s == State::Running
+                && *s == State::Running
                 && matches!(p.load.model(), Model::Electronic { .. })
         })
+        .collect();
+    let mut orders: Vec<u32> = net
+        .loads()
+        .iter()
+        .zip(&is_source)
+        .filter(|(_, s)| **s)
         .flat_map(|(p, _)| {
             p.load
                 .harmonics()
@@ -535,36 +766,23 @@ fn solve_harmonics(
     if orders.is_empty() {
         return Ok(());
     }
-    if matches!(net.neutral(), NeutralPath::Open { .. }) {
-        sol.harmonics_skipped = true;
-        return Ok(());
-    }
-    let zero = Complex64::new(0.0, 0.0);
     let mut harmonic_sq = vec![0.0; y.len()];
-    // Each load's series impedance at the fundamental and its injected current's magnitude and
-    // angle, worked out once for all orders.
-    let z1: Vec<Complex64> = y.iter().map(|yk| yk.inv()).collect();
-    let is_source: Vec<bool> = net
-        .loads()
-        .iter()
-        .zip(states)
-        .map(|(p, s)| {
-            p.load.is_on()
-                && *s == State::Running
-                && matches!(p.load.model(), Model::Electronic { .. })
-        })
-        .collect();
+    // Each load's series impedance at the fundamental, worked out once for all orders.
+    let z1: Vec<Complex64> = y.iter().map(|yk| inv(*yk)).collect();
     let mut elements = Vec::with_capacity(y.len());
     let mut injections = Vec::new();
-    let mut current_of = vec![zero; y.len()];
-    let mut y_h = vec![zero; y.len()];
+    let mut source_of = vec![ZERO; y.len()];
+    let mut y_h = vec![ZERO; y.len()];
     for h in orders {
         elements.clear();
         injections.clear();
+        let hf = f64::from(h);
         for (k, p) in net.loads().iter().enumerate() {
             if !p.load.is_on() {
                 continue;
             }
+            let (a, b) = ends(net, p);
+            let zb = at_harmonic(p.branch, h);
             if is_source[k] {
                 let frac: f64 = p
                     .load
@@ -574,42 +792,46 @@ fn solve_harmonics(
                     .map(|(_, f)| f)
                     .sum();
                 let angle = sol.loads[k].terminal_v.map(|v| v.arg()).unwrap_or(0.0);
-                let i =
-                    Complex64::from_polar(frac * sol.loads[k].current.norm(), f64::from(h) * angle);
-                injections.push(Injection {
-                    a: p.a.index(),
-                    b: p.b.index(),
-                    i,
-                });
-                current_of[k] = i;
+                let i_src = Complex64::from_polar(frac * sol.loads[k].current.norm(), hf * angle);
+                let y_norton = Complex64::new(y[k].re, y[k].im / hf);
+                let through = Complex64::new(1.0, 0.0) + zb * y_norton;
+                y_h[k] = div(y_norton, through);
+                source_of[k] = div(i_src, through);
+                if source_of[k] != ZERO {
+                    injections.push(Injection {
+                        a,
+                        b,
+                        i: source_of[k],
+                    });
+                }
             } else {
-                y_h[k] = (at_harmonic(z1[k], h) + at_harmonic(p.branch, h)).inv();
-                elements.push(Element {
-                    a: p.a.index(),
-                    b: p.b.index(),
-                    y: y_h[k],
-                });
+                y_h[k] = inv(at_harmonic(z1[k], h) + zb);
             }
+            elements.push(Element { a, b, y: y_h[k] });
         }
-        let v = nodal(net, h, &elements, &injections)?;
-        let mut legs = [zero; 3];
-        let mut into_neutral = zero;
+        let v = nodal(net, h, &elements, &injections, ws)?;
+        let mut legs = [ZERO; 3];
+        let mut into_neutral = ZERO;
+        let mut shared = vec![ZERO; net.shared().len()];
         for (k, p) in net.loads().iter().enumerate() {
             if !p.load.is_on() {
                 continue;
             }
-            let i = if is_source[k] {
-                current_of[k]
-            } else {
-                pair(&v, p.a, p.b).map(|vp| vp * y_h[k]).unwrap_or(zero)
-            };
+            let (a, b) = ends(net, p);
+            let through = pair(&v, a, b).map(|vp| vp * y_h[k]).unwrap_or(ZERO);
+            let i = through + if is_source[k] { source_of[k] } else { ZERO };
             harmonic_sq[k] += i.norm_sqr();
-            add_branch_current(&mut legs, &mut into_neutral, p.a, p.b, i);
+            add_branch_current(&mut legs, &mut into_neutral, &mut shared, p.a, p.b, i);
         }
+        into_neutral += shared_into_neutral(net, &mut shared);
+        let (neutral_current, earth_current) = split_return(net, h, v[NEUTRAL_INDEX], into_neutral);
         sol.harmonics.push(HarmonicResult {
             order: h,
             leg_current: legs,
-            neutral_current: into_neutral,
+            neutral_current,
+            earth_current,
+            neutral_v: v[NEUTRAL_INDEX],
+            shared_current: shared,
         });
     }
     for (r, sq) in sol.loads.iter_mut().zip(harmonic_sq) {

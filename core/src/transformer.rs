@@ -5,12 +5,49 @@
 //! 120/240 V unit) for single-phase, and the line-to-line voltage for three-phase (per-phase wye
 //! equivalent). X/R splits |Z| into R = |Z|/√(1 + (X/R)²) and X = R·(X/R).
 
-use crate::system::{Leg, System, SystemKind};
+use crate::system::{System, SystemKind};
 use num_complex::Complex64;
 
 /// Primary tap settings a distribution transformer usually offers: two steps of 2.5 % each way
 /// (common practice, no source).
 pub const TAP_STEPS_PCT: [f64; 5] = [-5.0, -2.5, 0.0, 2.5, 5.0];
+
+/// How the transformer's windings are connected.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Connection {
+    /// One primary winding and a center-tapped secondary: the split-phase service's unit.
+    SinglePhase,
+    /// Primary windings across the primary lines (delta), secondary windings to the star point.
+    DeltaWye,
+    /// Primary windings to the primary's neutral, secondary windings to the star point.
+    WyeWye,
+}
+
+impl Connection {
+    /// Reads `single-phase`, `delta-wye` (also `delta-y`, `dy`), `wye-wye` (`y-y`, `yy`).
+    pub fn parse(s: &str) -> Option<Connection> {
+        match s
+            .trim()
+            .to_ascii_lowercase()
+            .replace(['_', ' '], "-")
+            .as_str()
+        {
+            "single-phase" | "single" | "center-tapped" => Some(Connection::SinglePhase),
+            "delta-wye" | "delta-y" | "dy" => Some(Connection::DeltaWye),
+            "wye-wye" | "y-y" | "yy" => Some(Connection::WyeWye),
+            _ => None,
+        }
+    }
+
+    /// The job-file spelling.
+    pub fn code(self) -> &'static str {
+        match self {
+            Connection::SinglePhase => "single-phase",
+            Connection::DeltaWye => "delta-wye",
+            Connection::WyeWye => "wye-wye",
+        }
+    }
+}
 
 /// A validated transformer.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -21,6 +58,7 @@ pub struct Transformer {
     pub(crate) x_over_r: f64,
     pub(crate) tap_pct: f64,
     pub(crate) supply_v: f64,
+    pub(crate) connection: Connection,
 }
 
 impl Transformer {
@@ -34,6 +72,7 @@ impl Transformer {
         x_over_r: f64,
         tap_pct: f64,
         supply_v: f64,
+        connection: Connection,
     ) -> Option<Transformer> {
         let pos = |v: f64| v.is_finite() && v > 0.0;
         (pos(kva)
@@ -51,7 +90,12 @@ impl Transformer {
             x_over_r,
             tap_pct,
             supply_v,
+            connection,
         })
+    }
+
+    pub fn connection(&self) -> Connection {
+        self.connection
     }
 
     pub fn kva(&self) -> f64 {
@@ -74,10 +118,32 @@ impl Transformer {
         self.tap_pct
     }
 
-    /// Turns ratio at the selected tap: primary volts over the full secondary winding's volts,
-    /// a = (V_p / V_s)·(1 + tap/100). Raising the primary tap adds primary turns and lowers the
-    /// secondary voltage.
+    /// The winding (turns) ratio at the selected tap, as a turns-ratio tester reads it across one
+    /// primary winding and the secondary winding on the same core leg:
+    /// a = (V_primary winding / V_secondary winding)·(1 + tap/100).
+    ///
+    /// Single-phase: the primary voltage over the full center-tapped secondary (7200 : 240 → 30).
+    /// Delta-wye: the primary line-to-line voltage over the secondary's line-to-neutral voltage
+    /// (4160 : 120 → 34.67). Wye-wye: the primary line-to-neutral voltage (V_p/√3) over the
+    /// secondary's line-to-neutral voltage. `primary_v` is the primary's line-to-line voltage on a
+    /// three-phase unit. Raising the primary tap adds primary turns and lowers the secondary
+    /// voltage.
     pub fn turns_ratio(&self, system: &System) -> f64 {
+        let tap = 1.0 + self.tap_pct / 100.0;
+        let v_ln = system.volts_to_neutral();
+        match self.connection {
+            Connection::SinglePhase => {
+                turns_ratio(self.primary_v, system.volts_line_to_line()) * tap
+            }
+            Connection::DeltaWye => turns_ratio(self.primary_v, v_ln) * tap,
+            Connection::WyeWye => turns_ratio(self.primary_v / 3f64.sqrt(), v_ln) * tap,
+        }
+    }
+
+    /// The ratio of the primary's line-to-line voltage to the secondary's at the selected tap
+    /// (for a single-phase unit, primary voltage over the full secondary): what a voltmeter on
+    /// the lines shows, whatever the winding connection.
+    pub fn line_voltage_ratio(&self, system: &System) -> f64 {
         turns_ratio(self.primary_v, system.volts_line_to_line()) * (1.0 + self.tap_pct / 100.0)
     }
 
@@ -94,7 +160,9 @@ impl Transformer {
 
     /// Series impedance of the whole winding (split-phase: L1 to L2) or of one phase (wye),
     /// referred to the secondary, ohms: |Z| = (%Z/100)·V_LL²/S for single-phase and
-    /// (%Z/100)·V_LL²/S per phase for three-phase.
+    /// (%Z/100)·V_LL²/S per phase of the wye equivalent for three-phase. A delta-wye and a
+    /// wye-wye unit of the same kVA and %Z present the same per-phase impedance to the secondary;
+    /// the connection changes the turns ratio, not this figure.
     pub fn winding_impedance(&self, system: &System) -> Complex64 {
         let v_ll = system.volts_line_to_line();
         let z_base = v_ll * v_ll / (self.kva * 1000.0);
@@ -133,23 +201,60 @@ impl Transformer {
         m
     }
 
-    /// Available bolted fault current at the secondary terminals with an infinite primary, amperes.
-    ///
-    /// Split-phase, line to line: I = V_LL/|Z|, which equals I_FL/(%Z/100). Wye: the three-phase
-    /// bolted fault, I = V_LN/|Z_phase| = I_FL/(%Z/100).
-    pub fn available_fault_a(&self, system: &System) -> f64 {
-        self.full_load_a(system) / (self.impedance_pct / 100.0)
+    /// Bolted fault currents at the secondary terminals with an infinite primary, amperes.
+    pub fn terminal_faults(&self, system: &System) -> Faults {
+        self.faults_through(system, Complex64::new(0.0, 0.0), Complex64::new(0.0, 0.0))
     }
 
-    /// Available bolted fault current line to neutral at the terminals, amperes.
+    /// Bolted fault currents with an infinite primary, amperes, at the end of service conductors
+    /// of one-way impedance `hot` (each hot) and `neutral`, at nominal voltage:
     ///
-    /// Split-phase: I = V_LN/|Z₀/4 + Z₁| with the center-tap model above. Wye: with the phase
-    /// impedance used for all sequences the line-to-neutral fault equals the three-phase fault.
-    pub fn available_fault_ln_a(&self, system: &System) -> f64 {
-        let m = self.source_matrix(system);
-        let leg = Leg::L1.index();
-        system.volts_to_neutral() / m[leg][leg].norm()
+    /// - Split-phase: line to line I = V_LL/|Z + 2·Z_hot| with Z the full winding's impedance;
+    ///   line to neutral I = V_LN/|Z_LN + Z_hot + Z_n| with Z_LN the center-tapped half's
+    ///   impedance from [`Transformer::source_matrix`].
+    /// - Wye: three-phase I = V_LN/|Z_ph + Z_hot|; line to line I = V_LL/(2·|Z_ph + Z_hot|)
+    ///   (positive and negative sequence alike); line to neutral I = V_LN/|Z_ph + Z_hot + Z_n|,
+    ///   taking the transformer's zero-sequence impedance equal to its positive-sequence one, as
+    ///   for a delta-wye unit and for a wye-wye bank whose primary neutral is solidly grounded
+    ///   (common practice, no source); the neutral return carries the whole fault current.
+    ///
+    /// Over a long service the line-to-line figure can exceed the line-to-neutral one although
+    /// at the terminals of a center-tapped unit it is the other way round: the line-to-neutral loop
+    /// runs out and back over two conductors at half the voltage.
+    pub fn faults_through(&self, system: &System, hot: Complex64, neutral: Complex64) -> Faults {
+        let v = system.volts_to_neutral();
+        let v_ll = system.volts_line_to_line();
+        match system.kind() {
+            SystemKind::SplitPhase => {
+                let m = self.source_matrix(system);
+                let z_ll = self.winding_impedance(system) + hot * 2.0;
+                let z_ln = m[0][0] + hot + neutral;
+                Faults {
+                    line_to_line_a: v_ll / z_ll.norm(),
+                    line_to_neutral_a: v / z_ln.norm(),
+                    three_phase_a: None,
+                }
+            }
+            SystemKind::Wye { .. } => {
+                let z = self.winding_impedance(system) + hot;
+                Faults {
+                    line_to_line_a: v_ll / (2.0 * z.norm()),
+                    line_to_neutral_a: v / (z + neutral).norm(),
+                    three_phase_a: Some(v / z.norm()),
+                }
+            }
+        }
     }
+}
+
+/// Bolted fault currents at one place, amperes (symmetrical rms, infinite primary).
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize)]
+pub struct Faults {
+    pub line_to_line_a: f64,
+    pub line_to_neutral_a: f64,
+    /// All three phases together (wye services only).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub three_phase_a: Option<f64>,
 }
 
 /// Turns (voltage) ratio primary : secondary, a = V_p / V_s (7200 : 240 → 30).

@@ -7,236 +7,101 @@
 //! rated at the system's voltage for its connection, power factor 1, movable.
 
 use crate::conductors::{Conductor, Conduit, Material, Size, FEET_PER_METRE};
-use crate::job::{ConductorFile, JobFile, LoadFile, Raw, JOB_VERSION};
+use crate::fields::{Checker, Rule};
+use crate::job::{ConductorFile, JobFile, LoadFile, Raw, SystemFile, JOB_VERSION};
 use crate::loads::{Connection, Load, Model, ELECTRONIC_DEFAULT_RANGE};
 use crate::system::{System, SystemKind};
-use crate::transformer::{Transformer, TAP_STEPS_PCT};
+use crate::transformer::{Connection as Winding, Transformer, TAP_STEPS_PCT};
 use serde_json::Value;
 
-/// One problem with the input: the JSON path of the field and what is wrong, lowercase.
-#[derive(Clone, Debug, PartialEq, Eq)]
-pub struct Problem {
-    pub path: String,
-    pub message: String,
-}
-
-impl std::fmt::Display for Problem {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "{}: {}", self.path, self.message)
-    }
-}
-
-/// The state of the service neutral between the panel and the transformer.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub enum NeutralState {
-    /// Connected through its conductor.
-    Intact,
-    /// Connected through its conductor plus a series resistance at the service (a loose or
-    /// corroded lug or splice), ohms ≥ 0.
-    Loose { ohms: f64 },
-    /// Broken. The panel neutral may still reach the transformer through the grounding electrode
-    /// and the earth, a resistance in ohms > 0.
-    Open { earth_return_ohms: Option<f64> },
-}
-
-impl NeutralState {
-    /// `intact`, `loose` or `open`.
-    pub fn code(self) -> &'static str {
-        match self {
-            NeutralState::Intact => "intact",
-            NeutralState::Loose { .. } => "loose",
-            NeutralState::Open { .. } => "open",
-        }
-    }
-}
-
-/// The service conductors (one run for each hot leg, one for the neutral).
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Service {
-    pub hot: Conductor,
-    pub neutral: Conductor,
-}
-
-/// A validated job: everything the network builder needs, with no invalid value possible.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Job {
-    pub(crate) name: String,
-    pub(crate) system: System,
-    pub(crate) transformer: Option<Transformer>,
-    pub(crate) service: Service,
-    pub(crate) neutral: NeutralState,
-    pub(crate) loads: Vec<Load>,
-    pub(crate) multiwire: Vec<Multiwire>,
-}
-
-/// A validated shared-neutral branch circuit.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Multiwire {
-    pub id: String,
-    pub material: Material,
-    /// The size's label (`12 AWG`).
-    pub size_label: String,
-    /// NEC Table 310.16 ampacity at the chosen column; `None` for sizes the table lacks.
-    pub ampacity_a: Option<f64>,
-    pub column_c: f64,
-}
-
-impl Job {
-    pub fn name(&self) -> &str {
-        &self.name
-    }
-    pub fn system(&self) -> &System {
-        &self.system
-    }
-    pub fn transformer(&self) -> Option<&Transformer> {
-        self.transformer.as_ref()
-    }
-    pub fn service(&self) -> &Service {
-        &self.service
-    }
-    pub fn neutral(&self) -> NeutralState {
-        self.neutral
-    }
-    pub fn loads(&self) -> &[Load] {
-        &self.loads
-    }
-    pub fn multiwire(&self) -> &[Multiwire] {
-        &self.multiwire
-    }
-
-    /// The same job with another neutral state (for the what-if and the sweep).
-    pub fn with_neutral(&self, neutral: NeutralState) -> Job {
-        Job {
-            neutral,
-            ..self.clone()
-        }
-    }
-
-    /// The same job with each load's connection replaced by `f(index, load)` (for balancing).
-    pub fn with_connections(&self, f: impl Fn(usize, &Load) -> Connection) -> Job {
-        let mut job = self.clone();
-        for (i, load) in job.loads.iter_mut().enumerate() {
-            load.connection = f(i, &self.loads[i]);
-        }
-        job
-    }
-}
+pub use crate::fields::Problem;
+pub use crate::validated::{Job, Multiwire, NeutralState, Service};
 
 /// Largest accepted values: beyond them a number is surely a typo (an extra zero or a unit mix-up).
+/// Smallest accepted values: below them a number makes no physical sense for a service (a
+/// system of microvolts, a kettle of a billionth of a watt) and would only push the arithmetic
+/// towards underflow.
 const MAX_VOLTS: f64 = 1000.0;
-const MAX_WATTS: f64 = 1_000_000.0;
-const MAX_KVA: f64 = 100_000.0;
-const MAX_PRIMARY_V: f64 = 100_000.0;
+const SYSTEM_VOLTS: (f64, f64) = (50.0, MAX_VOLTS);
+const WATTS: (f64, f64) = (0.1, 1_000_000.0);
+const KVA: (f64, f64) = (0.5, 100_000.0);
+const PRIMARY_V: (f64, f64) = (100.0, 100_000.0);
 const MAX_LENGTH_M: f64 = 100_000.0;
 const MAX_OHMS: f64 = 1_000_000.0;
+/// An earth path below 0.01 Ω is a conductor, not the earth (common practice, no source).
+const EARTH_OHMS: (f64, f64) = (0.01, MAX_OHMS);
+/// A load's rating as a fraction of its connection's nominal voltage: outside half to twice
+/// nominal the load belongs on another service, and the entry is surely a typo.
+const RATED_V_FRACTION: (f64, f64) = (0.5, 2.0);
 
-/// Collects problems while walking a file (jobs here; readings in [`crate::tools::diagnose`]).
-pub(crate) struct Checker {
-    pub(crate) problems: Vec<Problem>,
-}
-
-/// What a number must be.
-#[derive(Clone, Copy)]
-pub(crate) enum Rule {
-    /// Finite, > 0 and ≤ max.
-    Positive(f64),
-    /// Finite, ≥ 0 and ≤ max.
-    NonNegative(f64),
-    /// Finite, lo ≤ x ≤ hi.
-    Between(f64, f64),
-}
-
-impl Checker {
-    pub(crate) fn fail(&mut self, path: &str, message: impl Into<String>) {
-        self.problems.push(Problem {
-            path: path.to_string(),
-            message: message.into(),
-        });
-    }
-
-    pub(crate) fn number(&mut self, raw: &Raw<f64>, path: &str, rule: Rule) -> Option<f64> {
-        let v = match raw {
-            Raw::Absent => return None,
-            Raw::Invalid(_) => {
-                self.fail(path, rule_message(rule));
-                return None;
-            }
-            Raw::Given(v) => *v,
-        };
-        let ok = v.is_finite()
-            && match rule {
-                Rule::Positive(max) => v > 0.0 && v <= max,
-                Rule::NonNegative(max) => (0.0..=max).contains(&v),
-                Rule::Between(lo, hi) => (lo..=hi).contains(&v),
-            };
-        if ok {
-            Some(v)
-        } else {
-            self.fail(path, format!("{} (got {v})", rule_message(rule)));
-            None
-        }
-    }
-
-    pub(crate) fn required_number(
-        &mut self,
-        raw: &Raw<f64>,
-        path: &str,
-        rule: Rule,
-    ) -> Option<f64> {
-        if raw.is_absent() {
-            self.fail(
-                path,
-                format!(
-                    "is required: {}",
-                    rule_message(rule).trim_start_matches("must be ")
-                ),
-            );
-            return None;
-        }
-        self.number(raw, path, rule)
-    }
-
-    pub(crate) fn text<'a>(&mut self, raw: &'a Raw<String>, path: &str) -> Option<&'a str> {
-        match raw {
-            Raw::Absent => None,
-            Raw::Invalid(_) => {
-                self.fail(path, "must be text");
-                None
-            }
-            Raw::Given(s) => Some(s.as_str()),
-        }
-    }
-
-    pub(crate) fn flag(&mut self, raw: &Raw<bool>, path: &str) -> Option<bool> {
-        match raw {
-            Raw::Absent => None,
-            Raw::Invalid(_) => {
-                self.fail(path, "must be true or false");
-                None
-            }
-            Raw::Given(b) => Some(*b),
-        }
-    }
-
-    pub(crate) fn object<'a, T>(&mut self, raw: &'a Raw<T>, path: &str) -> Option<&'a T> {
-        match raw {
-            Raw::Absent => None,
-            Raw::Invalid(_) => {
-                self.fail(path, "must be an object");
-                None
-            }
-            Raw::Given(v) => Some(v),
-        }
-    }
-}
-
-fn rule_message(rule: Rule) -> String {
-    match rule {
-        Rule::Positive(max) => format!("must be a positive number up to {max}"),
-        Rule::NonNegative(max) => format!("must be a number from 0 to {max}"),
-        Rule::Between(lo, hi) => format!("must be a number from {lo} to {hi}"),
-    }
-}
+/// The keys each object of the job format defines (version 1); anything else is refused.
+pub const JOB_KEYS: &[&str] = &[
+    "version",
+    "name",
+    "notes",
+    "system",
+    "transformer",
+    "service",
+    "neutral",
+    "loads",
+    "multiwire",
+];
+/// See [`JOB_KEYS`].
+pub const SYSTEM_KEYS: &[&str] = &["kind", "volts_to_neutral", "frequency_hz", "phases"];
+/// See [`JOB_KEYS`].
+pub const TRANSFORMER_KEYS: &[&str] = &[
+    "kva",
+    "primary_v",
+    "impedance_pct",
+    "x_over_r",
+    "tap_pct",
+    "supply_v",
+    "connection",
+];
+/// See [`JOB_KEYS`].
+pub const SERVICE_KEYS: &[&str] = &["hot", "neutral"];
+/// See [`JOB_KEYS`].
+pub const CONDUCTOR_KEYS: &[&str] = &[
+    "material",
+    "size",
+    "length_m",
+    "length_ft",
+    "sets",
+    "conduit",
+    "temperature_c",
+    "r_ohm",
+    "x_ohm",
+];
+/// See [`JOB_KEYS`].
+pub const NEUTRAL_KEYS: &[&str] = &["state", "ohms", "earth_return_ohms"];
+/// See [`JOB_KEYS`].
+pub const LOAD_KEYS: &[&str] = &[
+    "name",
+    "connect",
+    "model",
+    "watts",
+    "rated_v",
+    "power_factor",
+    "on",
+    "branch",
+    "input_min_v",
+    "input_max_v",
+    "harmonics",
+    "appliance",
+    "circuit",
+    "movable",
+    "slot",
+    "multiwire",
+];
+/// See [`JOB_KEYS`].
+pub const MULTIWIRE_KEYS: &[&str] = &[
+    "id",
+    "material",
+    "size",
+    "length_m",
+    "length_ft",
+    "column_c",
+];
 
 /// Validates a job file.
 ///
@@ -253,9 +118,8 @@ fn rule_message(rule: Rule) -> String {
 /// assert_eq!(problems[0].path, "loads[0].watts");
 /// ```
 pub fn validate(file: &JobFile) -> Result<Job, Vec<Problem>> {
-    let mut c = Checker {
-        problems: Vec::new(),
-    };
+    let mut c = Checker::new();
+    c.unknown_keys(&file.unknown, "", JOB_KEYS);
     match &file.version {
         Raw::Absent => {}
         Raw::Given(v) if *v == JOB_VERSION => {}
@@ -274,12 +138,14 @@ pub fn validate(file: &JobFile) -> Result<Job, Vec<Problem>> {
     }
     let _ = c.text(&file.notes, "notes");
 
-    let system = validate_system(&mut c, file);
+    let system = validate_system(&mut c, &file.system);
     let transformer = system.and_then(|s| validate_transformer(&mut c, file, &s));
     let service = system.map(|s| validate_service(&mut c, file, &s));
-    let neutral = validate_neutral(&mut c, file);
+    let (neutral, earth_ohms) = validate_neutral(&mut c, file);
     let loads = system.map(|s| validate_loads(&mut c, file, &s));
-    let multiwire = validate_multiwire(&mut c, file, loads.as_deref().unwrap_or(&[]));
+    let multiwire = system
+        .map(|s| validate_multiwire(&mut c, file, loads.as_deref().unwrap_or(&[]), &s))
+        .unwrap_or_default();
 
     match (system, service, loads) {
         (Some(system), Some(service), Some(loads)) if c.problems.is_empty() => Ok(Job {
@@ -288,6 +154,7 @@ pub fn validate(file: &JobFile) -> Result<Job, Vec<Problem>> {
             transformer: transformer.flatten(),
             service,
             neutral,
+            earth_ohms,
             loads,
             multiwire,
         }),
@@ -295,20 +162,10 @@ pub fn validate(file: &JobFile) -> Result<Job, Vec<Problem>> {
     }
 }
 
-pub(crate) fn validate_system_raw(
-    c: &mut Checker,
-    system: &Raw<crate::job::SystemFile>,
-) -> Option<System> {
-    let file = JobFile {
-        system: system.clone(),
-        ..JobFile::default()
-    };
-    validate_system(c, &file)
-}
-
-fn validate_system(c: &mut Checker, file: &JobFile) -> Option<System> {
-    let Some(sys) = c.object(&file.system, "system") else {
-        if file.system.is_absent() {
+/// Validates a `system` object; jobs and readings files share it.
+pub fn validate_system(c: &mut Checker, system: &Raw<SystemFile>) -> Option<System> {
+    let Some(sys) = c.object(system, "system") else {
+        if system.is_absent() {
             c.fail(
                 "system",
                 "is required: an object with kind split-phase or wye",
@@ -316,6 +173,7 @@ fn validate_system(c: &mut Checker, file: &JobFile) -> Option<System> {
         }
         return None;
     };
+    c.unknown_keys(&sys.unknown, "system", SYSTEM_KEYS);
     let kind = match c.text(&sys.kind, "system.kind") {
         None if sys.kind.is_absent() => {
             c.fail("system.kind", "is required: split-phase or wye");
@@ -348,7 +206,7 @@ fn validate_system(c: &mut Checker, file: &JobFile) -> Option<System> {
         .number(
             &sys.volts_to_neutral,
             "system.volts_to_neutral",
-            Rule::Positive(MAX_VOLTS),
+            Rule::Between(SYSTEM_VOLTS.0, SYSTEM_VOLTS.1),
         )
         .or(sys.volts_to_neutral.is_absent().then_some(120.0));
     let f = c
@@ -370,12 +228,45 @@ fn validate_transformer(
         return Some(None);
     }
     let t = c.object(&file.transformer, "transformer")?;
-    let kva = c.required_number(&t.kva, "transformer.kva", Rule::Positive(MAX_KVA));
+    c.unknown_keys(&t.unknown, "transformer", TRANSFORMER_KEYS);
+    let kva = c.required_number(&t.kva, "transformer.kva", Rule::Between(KVA.0, KVA.1));
     let primary = c.required_number(
         &t.primary_v,
         "transformer.primary_v",
-        Rule::Positive(MAX_PRIMARY_V),
+        Rule::Between(PRIMARY_V.0, PRIMARY_V.1),
     );
+    let default_winding = match system.kind() {
+        SystemKind::SplitPhase => Winding::SinglePhase,
+        SystemKind::Wye { .. } => Winding::DeltaWye,
+    };
+    let winding = match c.text(&t.connection, "transformer.connection") {
+        None => t.connection.is_absent().then_some(default_winding),
+        Some(text) => match (Winding::parse(text), system.kind()) {
+            (None, _) => {
+                c.fail(
+                    "transformer.connection",
+                    format!("must be single-phase, delta-wye or wye-wye (got {text:?})"),
+                );
+                None
+            }
+            (Some(Winding::SinglePhase), SystemKind::SplitPhase) => Some(Winding::SinglePhase),
+            (Some(Winding::SinglePhase), SystemKind::Wye { .. }) => {
+                c.fail(
+                    "transformer.connection",
+                    "a wye service is fed by a three-phase connection: delta-wye or wye-wye",
+                );
+                None
+            }
+            (Some(_), SystemKind::SplitPhase) => {
+                c.fail(
+                    "transformer.connection",
+                    "a split-phase service is fed by a single-phase, center-tapped transformer",
+                );
+                None
+            }
+            (Some(w), SystemKind::Wye { .. }) => Some(w),
+        },
+    };
     let z = c.required_number(
         &t.impedance_pct,
         "transformer.impedance_pct",
@@ -400,7 +291,7 @@ fn validate_transformer(
         .number(
             &t.supply_v,
             "transformer.supply_v",
-            Rule::Positive(MAX_PRIMARY_V),
+            Rule::Between(PRIMARY_V.0 / 2.0, PRIMARY_V.1 * 1.5),
         )
         .or(t.supply_v.is_absent().then_some(primary?));
     if let (Some(p), Some(s)) = (primary, supply) {
@@ -422,7 +313,9 @@ fn validate_transformer(
             return None;
         }
     }
-    Some(Transformer::new(kva?, primary?, z?, xr?, tap?, supply?))
+    Some(Transformer::new(
+        kva?, primary?, z?, xr?, tap?, supply?, winding?,
+    ))
 }
 
 fn validate_service(c: &mut Checker, file: &JobFile, system: &System) -> Service {
@@ -433,6 +326,7 @@ fn validate_service(c: &mut Checker, file: &JobFile, system: &System) -> Service
     let Some(s) = c.object(&file.service, "service") else {
         return ideal;
     };
+    c.unknown_keys(&s.unknown, "service", SERVICE_KEYS);
     let hot = match &s.hot {
         Raw::Absent => Some(Conductor::ideal()),
         raw => c
@@ -458,6 +352,7 @@ fn validate_conductor(
     path: &str,
     system: &System,
 ) -> Option<Conductor> {
+    c.unknown_keys(&f.unknown, path, CONDUCTOR_KEYS);
     let explicit = !f.r_ohm.is_absent() || !f.x_ohm.is_absent();
     let tabled = !f.material.is_absent() || !f.size.is_absent();
     if explicit && tabled {
@@ -595,27 +490,28 @@ fn validate_conductor(
     }
 }
 
-fn validate_neutral(c: &mut Checker, file: &JobFile) -> NeutralState {
+/// The neutral's state and the earth path beside it (in any state).
+fn validate_neutral(c: &mut Checker, file: &JobFile) -> (NeutralState, Option<f64>) {
     let Some(n) = c.object(&file.neutral, "neutral") else {
-        return NeutralState::Intact;
+        return (NeutralState::Intact, None);
     };
+    c.unknown_keys(&n.unknown, "neutral", NEUTRAL_KEYS);
+    let earth = c.number(
+        &n.earth_return_ohms,
+        "neutral.earth_return_ohms",
+        Rule::Between(EARTH_OHMS.0, EARTH_OHMS.1),
+    );
     let state = match c.text(&n.state, "neutral.state") {
         None => "intact".to_string(),
         Some(s) => s.trim().to_ascii_lowercase(),
     };
-    match state.as_str() {
+    let state = match state.as_str() {
         "intact" => NeutralState::Intact,
         "loose" => match c.required_number(&n.ohms, "neutral.ohms", Rule::NonNegative(MAX_OHMS)) {
             Some(ohms) => NeutralState::Loose { ohms },
             None => NeutralState::Intact,
         },
-        "open" => NeutralState::Open {
-            earth_return_ohms: c.number(
-                &n.earth_return_ohms,
-                "neutral.earth_return_ohms",
-                Rule::Positive(MAX_OHMS),
-            ),
-        },
+        "open" => NeutralState::Open,
         other => {
             c.fail(
                 "neutral.state",
@@ -623,7 +519,8 @@ fn validate_neutral(c: &mut Checker, file: &JobFile) -> NeutralState {
             );
             NeutralState::Intact
         }
-    }
+    };
+    (state, earth)
 }
 
 fn validate_loads(c: &mut Checker, file: &JobFile, system: &System) -> Vec<Load> {
@@ -658,6 +555,7 @@ fn validate_load(
     system: &System,
 ) -> Option<Load> {
     let p = |field: &str| format!("{path}.{field}");
+    c.unknown_keys(&f.unknown, path, LOAD_KEYS);
     let name = match c.text(&f.name, &p("name")) {
         Some(n) if n.trim().is_empty() => {
             c.fail(&p("name"), "must not be empty");
@@ -721,13 +619,20 @@ fn validate_load(
             }
         }
     };
-    let watts = c.required_number(&f.watts, &p("watts"), Rule::Positive(MAX_WATTS));
+    let watts = c.required_number(&f.watts, &p("watts"), Rule::Between(WATTS.0, WATTS.1));
     let default_v = connection.map(|conn| match conn {
         Connection::ToNeutral(_) => system.volts_to_neutral(),
         Connection::Across(..) => system.volts_line_to_line(),
     });
+    let rated_rule = match default_v {
+        Some(nominal) => Rule::Between(
+            RATED_V_FRACTION.0 * nominal,
+            (RATED_V_FRACTION.1 * nominal).min(MAX_VOLTS),
+        ),
+        None => Rule::Between(RATED_V_FRACTION.0 * SYSTEM_VOLTS.0, MAX_VOLTS),
+    };
     let rated_v = c
-        .number(&f.rated_v, &p("rated_v"), Rule::Positive(MAX_VOLTS))
+        .number(&f.rated_v, &p("rated_v"), rated_rule)
         .or(if f.rated_v.is_absent() {
             default_v
         } else {
@@ -765,17 +670,19 @@ fn validate_load(
     let multiwire = c
         .text(&f.multiwire, &p("multiwire"))
         .map(|s| s.trim().to_string());
+    // A member of a shared-neutral circuit returns through the circuit's shared neutral, which
+    // the network holds as its own branch, so its branch is its hot conductor alone.
+    let shared = matches!(&f.multiwire, Raw::Given(id) if !id.trim().is_empty());
     let branch = match &f.branch {
         Raw::Absent => Some(None),
         raw => c
             .object(raw, &p("branch"))
             .and_then(|b| validate_conductor(c, b, &p("branch"), system))
             .map(|cond| {
+                let z = cond.impedance();
                 // The branch is given one way; the loop is the outgoing and the return conductor.
-                Some(Conductor::explicit(
-                    2.0 * cond.impedance().re,
-                    2.0 * cond.impedance().im,
-                ))
+                let k = if shared { 1.0 } else { 2.0 };
+                Some(Conductor::explicit(k * z.re, k * z.im))
             }),
     };
     let harmonics = match &f.harmonics {
@@ -812,13 +719,21 @@ fn validate_load(
         (Some("motor"), _) => Some(Model::Motor),
         (Some("electronic"), Some(vr)) => {
             let lo = c
-                .number(&f.input_min_v, &p("input_min_v"), Rule::Positive(MAX_VOLTS))
+                .number(
+                    &f.input_min_v,
+                    &p("input_min_v"),
+                    Rule::Between(1.0, MAX_VOLTS),
+                )
                 .or(f
                     .input_min_v
                     .is_absent()
                     .then_some(ELECTRONIC_DEFAULT_RANGE.0 * vr));
             let hi = c
-                .number(&f.input_max_v, &p("input_max_v"), Rule::Positive(MAX_VOLTS))
+                .number(
+                    &f.input_max_v,
+                    &p("input_max_v"),
+                    Rule::Between(1.0, MAX_VOLTS),
+                )
                 .or(f
                     .input_max_v
                     .is_absent()
@@ -866,7 +781,12 @@ fn validate_load(
     })
 }
 
-fn validate_multiwire(c: &mut Checker, file: &JobFile, loads: &[Load]) -> Vec<Multiwire> {
+fn validate_multiwire(
+    c: &mut Checker,
+    file: &JobFile,
+    loads: &[Load],
+    system: &System,
+) -> Vec<Multiwire> {
     let list = match &file.multiwire {
         Raw::Absent => Vec::new(),
         Raw::Invalid(_) => {
@@ -881,6 +801,7 @@ fn validate_multiwire(c: &mut Checker, file: &JobFile, loads: &[Load]) -> Vec<Mu
         let Some(m) = c.object(raw, &format!("multiwire[{i}]")) else {
             continue;
         };
+        c.unknown_keys(&m.unknown, &format!("multiwire[{i}]"), MULTIWIRE_KEYS);
         let id = match c.text(&m.id, &path("id")) {
             Some(id) if !id.trim().is_empty() => Some(id.trim().to_string()),
             _ => {
@@ -915,17 +836,53 @@ fn validate_multiwire(c: &mut Checker, file: &JobFile, loads: &[Load]) -> Vec<Mu
                 c.fail(&path("column_c"), "must be 60, 75 or 90");
             }
         }
-        if let (Some(id), Some(material), Some(row), Some(col)) = (id, material, size, column) {
+        let length_ft = match (&m.length_m, &m.length_ft) {
+            (Raw::Absent, Raw::Absent) => Some(None),
+            (l, Raw::Absent) => c
+                .number(l, &path("length_m"), Rule::NonNegative(MAX_LENGTH_M))
+                .map(|m| Some(m * FEET_PER_METRE)),
+            (Raw::Absent, l) => c
+                .number(
+                    l,
+                    &path("length_ft"),
+                    Rule::NonNegative(MAX_LENGTH_M * FEET_PER_METRE),
+                )
+                .map(Some),
+            _ => {
+                c.fail(&path("length_ft"), "give length_m or length_ft, not both");
+                None
+            }
+        };
+        if let (Some(id), Some(material), Some(row), Some(col), Some(length_ft)) =
+            (id, material, size, column, length_ft)
+        {
             if out.iter().any(|o| o.id == id) {
                 c.fail(&path("id"), format!("{id:?} is used twice"));
                 continue;
             }
+            let conductor = match Conductor::from_table(
+                material,
+                Size::Awg(row),
+                Conduit::Pvc,
+                length_ft.unwrap_or(0.0),
+                1,
+                75.0,
+                system.frequency_hz(),
+            ) {
+                Ok(cond) => cond,
+                Err(e) => {
+                    c.fail(&path("size"), e.to_string());
+                    continue;
+                }
+            };
             out.push(Multiwire {
                 id,
                 material,
                 size_label: Size::Awg(row).label(),
                 ampacity_a: crate::conductors::ampacity::ampacity(material, row.size, col),
                 column_c: col,
+                conductor,
+                has_length: length_ft.is_some(),
             });
         }
     }

@@ -1,9 +1,9 @@
 //! What-if: the same job with the neutral intact, loose and open, and a sweep of the neutral's
 //! resistance from 0 to open for a plot of every appliance's voltage.
 
-use crate::classify::{classify, Outcome};
+use crate::classify::{classify, Context, Outcome};
 use crate::network::Network;
-use crate::report::{build, Report};
+use crate::report::{build, checked, Report};
 use crate::solve::{solve, solve_fundamental, SolveError};
 use crate::validate::{Job, NeutralState};
 use serde::Serialize;
@@ -21,27 +21,24 @@ pub struct WhatIf {
 }
 
 /// Solves the job with the neutral intact, loose (the job's resistance or
-/// [`DEFAULT_LOOSE_OHMS`]) and open (with the job's earth return, if it gives one).
+/// [`DEFAULT_LOOSE_OHMS`]) and open; the job's earth path stays beside the neutral in all three.
 ///
 /// # Errors
 /// The first [`SolveError`] met.
 pub fn what_if(job: &Job) -> Result<WhatIf, SolveError> {
-    let (loose, earth) = match job.neutral() {
-        NeutralState::Loose { ohms } => (ohms, None),
-        NeutralState::Open { earth_return_ohms } => (DEFAULT_LOOSE_OHMS, earth_return_ohms),
-        NeutralState::Intact => (DEFAULT_LOOSE_OHMS, None),
+    let loose = match job.neutral() {
+        NeutralState::Loose { ohms } => ohms,
+        _ => DEFAULT_LOOSE_OHMS,
     };
     let one = |state| -> Result<Report, SolveError> {
         let j = job.with_neutral(state);
         let net = Network::new(&j);
-        Ok(build(&j, &net, &solve(&net)?))
+        checked(build(&j, &net, &solve(&net)?))
     };
     Ok(WhatIf {
         intact: one(NeutralState::Intact)?,
         loose: one(NeutralState::Loose { ohms: loose })?,
-        open: one(NeutralState::Open {
-            earth_return_ohms: earth,
-        })?,
+        open: one(NeutralState::Open)?,
     })
 }
 
@@ -82,17 +79,18 @@ pub fn sweep_points(n: usize) -> Vec<Option<f64>> {
     out
 }
 
-/// Sweeps the neutral from solid to open over `points` (see [`sweep_points`]). The open point keeps
-/// the job's earth return if it has one.
+/// Sweeps the neutral from solid to open over `points` (see [`sweep_points`]). The job's earth
+/// path stays beside the neutral at every point, so the sweep runs continuously into "open".
 ///
 /// # Errors
 /// The first [`SolveError`] met.
 pub fn sweep(job: &Job, points: &[Option<f64>]) -> Result<Sweep, SolveError> {
-    let earth = match job.neutral() {
-        NeutralState::Open { earth_return_ohms } => earth_return_ohms,
-        _ => None,
-    };
     let mut net = Network::new(job);
+    let contexts: Vec<Context> = job
+        .loads()
+        .iter()
+        .map(|l| Context::of(job.system(), l))
+        .collect();
     let mut loads: Vec<SweepSeries> = job
         .loads()
         .iter()
@@ -107,16 +105,19 @@ pub fn sweep(job: &Job, points: &[Option<f64>]) -> Result<Sweep, SolveError> {
     for p in points {
         net.set_neutral(match p {
             Some(ohms) => NeutralState::Loose { ohms: *ohms },
-            None => NeutralState::Open {
-                earth_return_ohms: earth,
-            },
+            None => NeutralState::Open,
         });
         let sol = solve_fundamental(&net)?;
-        for ((series, r), load) in loads.iter_mut().zip(&sol.loads).zip(job.loads()) {
+        for (k, ((series, r), load)) in loads
+            .iter_mut()
+            .zip(&sol.loads)
+            .zip(job.loads())
+            .enumerate()
+        {
             let v = r.terminal_v.map(|v| v.norm());
             series.volts.push(v);
             series.outcomes.push(match v {
-                Some(v) => classify(load, v, r.state, load.is_on()).0,
+                Some(v) => classify(load, v, r.state, load.is_on(), contexts[k]).0,
                 None => Outcome::Off,
             });
         }

@@ -49,10 +49,12 @@ fn solve_prints_the_report_fields_the_format_promises() {
     assert!(r["neutral_current_a"].as_f64().unwrap() > 0.0);
     assert_eq!(r["transformer"]["turns_ratio"].as_f64().unwrap(), 30.0);
     assert!(r["transformer"]["full_load_a"].as_f64().unwrap() > 100.0);
+    let terminals = &r["transformer"]["fault_at_terminals"];
     assert!(
-        r["transformer"]["available_fault_ln_a"].as_f64().unwrap()
-            > r["transformer"]["available_fault_a"].as_f64().unwrap()
+        terminals["line_to_neutral_a"].as_f64().unwrap()
+            > terminals["line_to_line_a"].as_f64().unwrap()
     );
+    assert!(r["fault_at_service"]["line_to_line_a"].as_f64().unwrap() > 0.0);
     let loads = r["loads"].as_array().unwrap();
     assert_eq!(loads[0]["name"], "Space heater");
     assert_eq!(loads[1]["name"], "Freezer");
@@ -97,7 +99,7 @@ fn bad_fields_exit_2_with_one_line_per_problem_and_nothing_on_stdout() {
     assert!(
         lines
             .iter()
-            .any(|l| l.starts_with("loads[2].watts: must be a positive number")),
+            .any(|l| l.starts_with("loads[2].watts: must be a number from 0.1 to")),
         "{err}"
     );
     assert_eq!(lines.len(), 3, "{err}");
@@ -116,7 +118,7 @@ fn each_class_of_bad_input_is_named() {
         ),
         (
             r#"{"system":{"kind":"split-phase","volts_to_neutral":"lots"}}"#,
-            "system.volts_to_neutral: must be a positive number",
+            "system.volts_to_neutral: must be a number from 50 to 1000",
         ),
         (
             r#"{"version":7,"system":{"kind":"split-phase"}}"#,
@@ -152,7 +154,31 @@ fn each_class_of_bad_input_is_named() {
         ),
         (
             r#"{"system":{"kind":"split-phase"},"loads":[{"connect":"L1-N","model":"resistive","watts":1e9}]}"#,
-            "loads[0].watts: must be a positive number up to 1000000",
+            "loads[0].watts: must be a number from 0.1 to 1000000",
+        ),
+        (
+            r#"{"version":1,"system":{"kind":"split-phase"},"loads":[{"connect":"L1-N","model":"resistive","wats":1500}]}"#,
+            "loads[0].wats: unknown field (did you mean watts?)",
+        ),
+        (
+            r#"{"version":1,"system":{"kind":"split-phase"},"neutral":{"state":"open","earth_ohms":25}}"#,
+            "neutral.earth_ohms: unknown field (did you mean earth_return_ohms?)",
+        ),
+        (
+            r#"{"version":1,"system":{"kind":"split-phase"},"transformer":{"kva":25,"primary_v":7200,"impedance_pct":2,"xr":3}}"#,
+            "transformer.xr: unknown field (did you mean x_over_r?)",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase","volts_to_neutral":1e-300}}"#,
+            "system.volts_to_neutral: must be a number from 50 to 1000",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"loads":[{"connect":"L1-N","model":"resistive","watts":100,"rated_v":5e-324}]}"#,
+            "loads[0].rated_v: must be a number from 60 to 240",
+        ),
+        (
+            r#"{"system":{"kind":"split-phase"},"transformer":{"kva":25,"primary_v":4160,"impedance_pct":2,"connection":"delta-wye"}}"#,
+            "transformer.connection: a split-phase service is fed by a single-phase",
         ),
         (
             r#"{"system":{"kind":"split-phase"},"loads":"none"}"#,

@@ -77,8 +77,12 @@ pub fn ServiceTab() -> impl IntoView {
                     <dl class="figures" data-testid="transformer-figures">
                         <dt>"Turns ratio"</dt><dd data-testid="turns-ratio">{format::fixed(t.turns_ratio, 1)} " : 1"</dd>
                         <dt>"Full-load current"</dt><dd>{format::amps(t.full_load_a)}</dd>
-                        <dt>"Available fault, line to line"</dt><dd data-testid="fault-ll">{format::fixed(t.available_fault_a, 0)} " A"</dd>
-                        <dt>"Available fault, line to neutral"</dt><dd>{format::fixed(t.available_fault_ln_a, 0)} " A"</dd>
+                        <dt>"Fault at the transformer terminals, line to line"</dt><dd data-testid="fault-ll">{format::fixed(t.fault_at_terminals.line_to_line_a, 0)} " A"</dd>
+                        <dt>"Fault at the transformer terminals, line to neutral"</dt><dd>{format::fixed(t.fault_at_terminals.line_to_neutral_a, 0)} " A"</dd>
+                        {rep.fault_at_service.map(|f| view! {
+                            <dt>"Fault at the service equipment, line to line"</dt><dd data-testid="fault-service-ll">{format::fixed(f.line_to_line_a, 0)} " A"</dd>
+                            <dt>"Fault at the service equipment, line to neutral"</dt><dd data-testid="fault-service-ln">{format::fixed(f.line_to_neutral_a, 0)} " A"</dd>
+                        })}
                         <dt>"Loading now"</dt><dd>{format::pct(Some(t.loading_pct))}</dd>
                     </dl>
                 }

@@ -15,9 +15,10 @@
 //! meters' resolution (σ = resolution/√12 for a quantised reading) or from the fit's residuals,
 //! whichever is larger.
 
+use crate::fields::{Checker, Problem, Rule, Unknown};
 use crate::job::{Raw, SystemFile};
 use crate::system::SystemKind;
-use crate::validate::{validate_system_raw, Checker, Problem, Rule};
+use crate::validate::validate_system;
 use serde::{Deserialize, Serialize};
 
 /// Readings format version.
@@ -40,6 +41,9 @@ pub struct ReadingsFile {
     pub system: Raw<SystemFile>,
     pub meter: Raw<MeterFile>,
     pub readings: Raw<Vec<Raw<ReadingFile>>>,
+    /// Keys this format does not define; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// The meters' resolution.
@@ -48,6 +52,9 @@ pub struct ReadingsFile {
 pub struct MeterFile {
     pub volts_resolution: Raw<f64>,
     pub amps_resolution: Raw<f64>,
+    /// Keys this format does not define; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// One set of readings.
@@ -62,6 +69,9 @@ pub struct ReadingFile {
     pub l1_l2_v: Raw<f64>,
     pub l1_a: Raw<f64>,
     pub l2_a: Raw<f64>,
+    /// Keys this format does not define; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
 }
 
 /// Where a reading was taken.
@@ -181,9 +191,12 @@ pub fn parse_readings(text: &str) -> Result<Readings, DiagnoseError> {
 /// # Errors
 /// Every problem found.
 pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError> {
-    let mut c = Checker {
-        problems: Vec::new(),
-    };
+    let mut c = Checker::new();
+    c.unknown_keys(
+        &file.unknown,
+        "",
+        &["version", "system", "meter", "readings"],
+    );
     match &file.version {
         Raw::Absent => {}
         Raw::Given(v) if *v == READINGS_VERSION => {}
@@ -191,7 +204,7 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
     }
     if file.system.is_absent() {
         c.fail("system", "is required: an object with kind split-phase");
-    } else if let Some(system) = validate_system_raw(&mut c, &file.system) {
+    } else if let Some(system) = validate_system(&mut c, &file.system) {
         if system.kind() != SystemKind::SplitPhase {
             c.fail(
                 "system.kind",
@@ -200,6 +213,11 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
         }
     }
     let meter = c.object(&file.meter, "meter").cloned().unwrap_or_default();
+    c.unknown_keys(
+        &meter.unknown,
+        "meter",
+        &["volts_resolution", "amps_resolution"],
+    );
     let vres = c
         .number(
             &meter.volts_resolution,
@@ -231,6 +249,11 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
         let Some(r) = c.object(raw, &format!("readings[{i}]")) else {
             continue;
         };
+        c.unknown_keys(
+            &r.unknown,
+            &format!("readings[{i}]"),
+            &["label", "at", "l1_n_v", "l2_n_v", "l1_l2_v", "l1_a", "l2_a"],
+        );
         let v1 = c.required_number(&r.l1_n_v, &path("l1_n_v"), Rule::Positive(1000.0));
         let v2 = c.required_number(&r.l2_n_v, &path("l2_n_v"), Rule::Positive(1000.0));
         let v12 = c.number(&r.l1_l2_v, &path("l1_l2_v"), Rule::Positive(2000.0));

@@ -1,6 +1,5 @@
-//! Field tools built on the engine: loose-neutral diagnosis from meter readings, panel balancing,
-//! and shared-neutral (multiwire) branch circuit checks.
+//! Field tools built on the pipeline: loose-neutral diagnosis from meter readings and panel
+//! balancing.
 
 pub mod balance;
 pub mod diagnose;
-pub mod multiwire;

@@ -300,7 +300,7 @@ fn transformer_full_load_and_fault_current() {
     );
     let t = r.transformer.unwrap();
     close(t.full_load_a, 104.17, 0.005);
-    close(t.available_fault_a, 5208.3, 0.05);
+    close(t.fault_at_terminals.line_to_line_a, 5208.3, 0.05);
     let v_ln = 208.0 / 3f64.sqrt();
     let wye = System::new(SystemKind::Wye { phases: 3 }, v_ln, 60.0).unwrap();
     close(full_load_current(75.0, &wye), 208.2, 0.05);
@@ -308,33 +308,28 @@ fn transformer_full_load_and_fault_current() {
         r#"{{"system":{{"kind":"wye","volts_to_neutral":{v_ln}}},"transformer":{{"kva":75,"primary_v":12470,"impedance_pct":3}}}}"#
     );
     let r = report(&text);
-    close(r.transformer.unwrap().available_fault_a, 6940.0, 1.0);
+    let faults = r.transformer.unwrap().fault_at_terminals;
+    close(faults.three_phase_a.unwrap(), 6940.0, 1.0);
 }
 
-/// Source: textbook short-circuit methods for center-tapped distribution transformers (read): a
-/// line-to-neutral fault exceeds the line-to-line fault by about 1.33–1.67 times, because the half
-/// winding's impedance on the full rating is about 1.5·R and 1.2·X of the full winding's.
+/// Source: the point-to-point short-circuit method of Bussmann's "Selecting Protective Devices"
+/// handbook (from memory) takes the line-to-neutral fault at the terminals of a center-tapped
+/// single-phase transformer as 1.5 times the line-to-line fault; textbooks bound the multiplier
+/// between 1.33 (resistive winding) and 1.67 (reactive winding). For the X/R of distribution
+/// units (1 to 2) the engine lands within 6 % of the published 1.5, and inside the bounds for any
+/// X/R.
 #[test]
-fn center_tapped_line_to_neutral_fault_exceeds_line_to_line() {
-    for xr in [0.5, 1.0, 1.5, 2.5, 4.0] {
+fn center_tapped_line_to_neutral_fault_follows_the_published_multiplier() {
+    for xr in [0.5, 1.0, 1.5, 2.0, 2.5, 4.0] {
         let text = format!(
             r#"{{"system":{{"kind":"split-phase"}},"transformer":{{"kva":50,"primary_v":7200,"impedance_pct":2,"x_over_r":{xr}}}}}"#
         );
-        let t = report(&text).transformer.unwrap();
-        let ratio = t.available_fault_ln_a / t.available_fault_a;
+        let f = report(&text).transformer.unwrap().fault_at_terminals;
+        let ratio = f.line_to_neutral_a / f.line_to_line_a;
         assert!((1.33..=1.67).contains(&ratio), "X/R {xr}: ratio {ratio}");
-        // The half-winding rule itself: Z_LN on the 120 V base equals (1.5R + j1.2X) of the full
-        // winding in per unit.
-        let z_pu_full = (t.impedance_r_ohm.powi(2) + t.impedance_x_ohm.powi(2)).sqrt()
-            / (240.0 * 240.0 / 50_000.0);
-        let half = ((1.5 * t.impedance_r_ohm).powi(2) + (1.2 * t.impedance_x_ohm).powi(2)).sqrt()
-            / (240.0 * 240.0 / 50_000.0);
-        close(
-            120.0 / t.available_fault_ln_a / (120.0 * 120.0 / 50_000.0),
-            half,
-            1e-9,
-        );
-        close(z_pu_full, 0.02, 1e-12);
+        if (1.0..=2.0).contains(&xr) {
+            assert!((ratio / 1.5 - 1.0).abs() < 0.06, "X/R {xr}: ratio {ratio}");
+        }
     }
 }
 
