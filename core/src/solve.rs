@@ -455,10 +455,13 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
         .iter()
         .map(|p| p.load.admittance(p.load.rated_v(), State::Running))
         .collect();
-    // Each load can restart at most once after giving way, so this many passes always suffice.
-    let mut restarted = vec![false; n];
+    // A restart is a trial: when it pulls any running load below its limit (or collapses the
+    // supply), the states before it come back and that load stays down. Each load is tried once,
+    // so the passes are bounded.
+    let mut tried = vec![false; n];
+    let mut trial: Option<(Vec<State>, Vec<Complex64>)> = None;
     let mut total_iterations = 0;
-    for _ in 0..3 * n + 3 {
+    for _ in 0..4 * n + 4 {
         let (v, iterations) = match iterate(net, &states, &mut y, &mut ws) {
             Ok(done) => done,
             Err(Unsettled::Singular) => return Err(SolveError::Singular),
@@ -466,10 +469,14 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
                 iterations,
                 last_vt,
             }) => {
+                total_iterations += iterations;
+                if let Some((s, yy)) = trial.take() {
+                    (states, y) = (s, yy);
+                    continue;
+                }
                 // A constant-power load the service cannot supply has no steady state: its voltage
                 // keeps sinking (voltage collapse). Physically the largest load whose demand cannot
                 // be met stalls or drops out first; solve again without it.
-                total_iterations += iterations;
                 let Some(k) = gives_way(net, &states, &last_vt, true) else {
                     return Err(SolveError::NoConvergence {
                         iterations: total_iterations,
@@ -490,41 +497,64 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
                 pair(&v, a, b).map(|vp| at_terminals(vp, p.branch, y[k]).norm())
             })
             .collect();
-        // Running loads below their limit give way all together (a set, so no order decides);
-        // any that could run once the others are gone restart below.
-        let mut changed = false;
-        for (k, p) in net.loads().iter().enumerate() {
-            let below = match (vt[k], p.load.low_limit_v()) {
-                (Some(v), Some(limit)) => v < limit * (1.0 - 1e-9),
-                _ => false,
-            };
-            if p.load.is_on() && states[k] == State::Running && below {
-                states[k] = low_state(p.load.model());
-                y[k] = p.load.admittance(0.0, states[k]);
-                changed = true;
+        let below: Vec<usize> = net
+            .loads()
+            .iter()
+            .enumerate()
+            .filter(|(k, p)| {
+                p.load.is_on()
+                    && states[*k] == State::Running
+                    && match (vt[*k], p.load.low_limit_v()) {
+                        (Some(v), Some(limit)) => v < limit * (1.0 - 1e-9),
+                        _ => false,
+                    }
+            })
+            .map(|(k, _)| k)
+            .collect();
+        if !below.is_empty() {
+            if let Some((s, yy)) = trial.take() {
+                (states, y) = (s, yy);
+                continue;
             }
-        }
-        if changed {
+            // Running loads below their limit give way all together (a set, so no order
+            // decides); those that can run once the others are gone restart below.
+            for k in below {
+                states[k] = low_state(net.loads()[k].load.model());
+                y[k] = net.loads()[k].load.admittance(0.0, states[k]);
+            }
             continue;
         }
-        // A load that gave way restarts when its voltage, with it in its low state, is back above
-        // its restart threshold (the hysteresis of [`crate::loads::Load::restart_v`]).
-        for (k, p) in net.loads().iter().enumerate() {
-            let up = match (vt[k], p.load.restart_v()) {
-                (Some(v), Some(restart)) => v >= restart,
-                _ => false,
-            };
-            if p.load.is_on() && states[k] != State::Running && !restarted[k] && up {
+        // Here any trial restart has held (its snapshot is replaced or dropped below). A load that
+        // gave way restarts when its voltage, with it in its low state, is back above
+        // its restart threshold (the hysteresis of [`crate::loads::Load::restart_v`]); the
+        // smallest goes first, since it is the one the supply can most likely carry.
+        let candidate = net
+            .loads()
+            .iter()
+            .enumerate()
+            .filter(|(k, p)| {
+                p.load.is_on()
+                    && states[*k] != State::Running
+                    && !tried[*k]
+                    && matches!((vt[*k], p.load.restart_v()), (Some(v), Some(r)) if v >= r)
+            })
+            .min_by(|(_, a), (_, b)| {
+                a.load
+                    .rated_complex_power()
+                    .norm()
+                    .total_cmp(&b.load.rated_complex_power().norm())
+            })
+            .map(|(k, _)| k);
+        match candidate {
+            Some(k) => {
+                trial = Some((states.clone(), y.clone()));
+                tried[k] = true;
                 states[k] = State::Running;
-                y[k] = p
+                y[k] = net.loads()[k]
                     .characteristic
                     .admittance(vt[k].unwrap_or(0.0), State::Running);
-                restarted[k] = true;
-                changed = true;
             }
-        }
-        if !changed {
-            return finish(net, &states, &y, v, total_iterations, harmonics, &mut ws);
+            None => return finish(net, &states, &y, v, total_iterations, harmonics, &mut ws),
         }
     }
     Err(SolveError::NoConvergence {

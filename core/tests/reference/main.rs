@@ -5,4 +5,5 @@
 mod common;
 
 mod tables;
+mod truth;
 mod worked;
