@@ -180,8 +180,96 @@ struct Injection {
     i: Complex64,
 }
 
+/// The part of the nodal equations that does not depend on the loads at one order: the source,
+/// the neutral conductor, the earth path and the shared neutrals, and the nodes held fixed.
+struct Base {
+    order: u32,
+    y: Vec<Complex64>,
+    rhs: Vec<Complex64>,
+    grounded: Vec<bool>,
+    fixed: Vec<Option<Complex64>>,
+}
+
+/// Adds admittance `y` between nodes `a` and `b` (`b` may be [`REFERENCE`]) of an n-node matrix.
+fn stamp(
+    y_mat: &mut [Complex64],
+    grounded: &mut [bool],
+    n: usize,
+    a: usize,
+    b: usize,
+    y: Complex64,
+) {
+    y_mat[a * n + a] += y;
+    if b == REFERENCE {
+        grounded[a] = true;
+    } else {
+        y_mat[b * n + b] += y;
+        y_mat[a * n + b] -= y;
+        y_mat[b * n + a] -= y;
+    }
+}
+
+impl Base {
+    // The admittance matrix is stamped by node index; indices read more clearly than iterators.
+    #[allow(clippy::needless_range_loop)]
+    fn new(net: &Network, h: u32) -> Result<Base, SolveError> {
+        let n = net.node_count();
+        let legs = net.leg_count();
+        let mut base = Base {
+            order: h,
+            y: vec![ZERO; n * n],
+            rhs: vec![ZERO; n],
+            grounded: vec![false; n],
+            fixed: vec![None; n],
+        };
+        match net.source() {
+            Source::Stiff => {
+                for k in 0..legs {
+                    base.fixed[k] = Some(if h == 1 { net.emf()[k] } else { ZERO });
+                }
+            }
+            Source::Thevenin { .. } => {
+                let ys = if h == 1 {
+                    net.source_y1.ok_or(SolveError::Singular)?
+                } else {
+                    net.source_y_at(h).ok_or(SolveError::Singular)?
+                };
+                for i in 0..legs {
+                    base.grounded[i] = true;
+                    for j in 0..legs {
+                        base.y[i * n + j] += ys[i][j];
+                        if h == 1 {
+                            base.rhs[i] += ys[i][j] * net.emf()[j];
+                        }
+                    }
+                }
+            }
+        }
+        let (y, g) = (&mut base.y, &mut base.grounded);
+        match net.neutral() {
+            NeutralPath::Solid => base.fixed[NEUTRAL_INDEX] = Some(ZERO),
+            NeutralPath::Conductor(_) => {
+                stamp(y, g, n, NEUTRAL_INDEX, REFERENCE, neutral_y(net, h));
+            }
+            NeutralPath::Open => {}
+        }
+        if net.earth_ohms().is_some() {
+            stamp(y, g, n, NEUTRAL_INDEX, REFERENCE, earth_y(net));
+        }
+        for (k, s) in net.shared().iter().enumerate() {
+            if !s.open && !s.is_solid() {
+                let ys = inv(at_harmonic(s.z, h));
+                stamp(y, g, n, Node::Shared(k).index(), NEUTRAL_INDEX, ys);
+            }
+        }
+        Ok(base)
+    }
+}
+
 /// Buffers reused between solves of one network.
 struct Workspace {
+    n: usize,
+    base: Base,
     y: Vec<Complex64>,
     rhs: Vec<Complex64>,
     a: Vec<Complex64>,
@@ -190,11 +278,18 @@ struct Workspace {
     grounded: Vec<bool>,
     reach: Vec<bool>,
     stack: Vec<usize>,
+    /// The node voltages of the last solve.
+    v: Vec<Option<Complex64>>,
+    /// Each load's two node indices (see [`ends`]).
+    ends: Vec<(usize, usize)>,
 }
 
 impl Workspace {
-    fn new(n: usize) -> Workspace {
-        Workspace {
+    fn new(net: &Network) -> Result<Workspace, SolveError> {
+        let n = net.node_count();
+        Ok(Workspace {
+            n,
+            base: Base::new(net, 1)?,
             y: vec![ZERO; n * n],
             rhs: vec![ZERO; n],
             a: Vec::with_capacity(n * n),
@@ -203,7 +298,9 @@ impl Workspace {
             grounded: vec![false; n],
             reach: vec![false; n],
             stack: Vec::with_capacity(n),
-        }
+            v: vec![None; n],
+            ends: net.loads().iter().map(|p| ends(net, p)).collect(),
+        })
     }
 }
 
@@ -222,93 +319,36 @@ fn earth_y(net: &Network) -> Complex64 {
         .unwrap_or(ZERO)
 }
 
-/// Solves the node voltages at harmonic order `h` (1 = fundamental, where the source EMFs act).
-// The admittance matrix is stamped by node index; indices read more clearly than iterators here.
-#[allow(clippy::needless_range_loop)]
+/// Solves the node voltages into `ws.v` at the order of `ws.base` (1 = fundamental, where the
+/// source EMFs act) with the loads' `elements` and `injections`.
 fn nodal(
-    net: &Network,
-    h: u32,
     elements: &[Element],
     injections: &[Injection],
     ws: &mut Workspace,
-) -> Result<Vec<Option<Complex64>>, SolveError> {
-    let n = net.node_count();
-    let legs = net.leg_count();
-    let mut fixed: Vec<Option<Complex64>> = vec![None; n];
-    ws.y.iter_mut().for_each(|z| *z = ZERO);
-    ws.rhs.iter_mut().for_each(|z| *z = ZERO);
-    ws.grounded.iter_mut().for_each(|g| *g = false);
-    match net.source() {
-        Source::Stiff => {
-            for (k, f) in fixed.iter_mut().enumerate().take(legs) {
-                *f = Some(if h == 1 { net.emf()[k] } else { ZERO });
-            }
-        }
-        Source::Thevenin { .. } => {
-            let ys = if h == 1 {
-                net.source_y1.ok_or(SolveError::Singular)?
-            } else {
-                net.source_y_at(h).ok_or(SolveError::Singular)?
-            };
-            for i in 0..legs {
-                ws.grounded[i] = true;
-                for j in 0..legs {
-                    ws.y[i * n + j] += ys[i][j];
-                    if h == 1 {
-                        ws.rhs[i] += ys[i][j] * net.emf()[j];
-                    }
-                }
-            }
-        }
-    }
-    let stamp = |ws: &mut Workspace, a: usize, b: usize, y: Complex64| {
-        ws.y[a * n + a] += y;
-        if b == REFERENCE {
-            ws.grounded[a] = true;
-        } else {
-            ws.y[b * n + b] += y;
-            ws.y[a * n + b] -= y;
-            ws.y[b * n + a] -= y;
-        }
-    };
-    match net.neutral() {
-        NeutralPath::Solid => fixed[NEUTRAL_INDEX] = Some(ZERO),
-        NeutralPath::Conductor(_) => stamp(ws, NEUTRAL_INDEX, REFERENCE, neutral_y(net, h)),
-        NeutralPath::Open => {}
-    }
-    if net.earth_ohms().is_some() {
-        stamp(ws, NEUTRAL_INDEX, REFERENCE, earth_y(net));
-    }
-    for (k, s) in net.shared().iter().enumerate() {
-        if !s.open && !s.is_solid() {
-            stamp(
-                ws,
-                Node::Shared(k).index(),
-                NEUTRAL_INDEX,
-                inv(at_harmonic(s.z, h)),
-            );
-        }
-    }
+) -> Result<(), SolveError> {
+    let n = ws.n;
+    ws.y.copy_from_slice(&ws.base.y);
+    ws.rhs.copy_from_slice(&ws.base.rhs);
+    ws.grounded.copy_from_slice(&ws.base.grounded);
     for e in elements {
-        stamp(ws, e.a, e.b, e.y);
+        stamp(&mut ws.y, &mut ws.grounded, n, e.a, e.b, e.y);
     }
     for s in injections {
         ws.rhs[s.a] -= s.i;
         ws.rhs[s.b] += s.i;
     }
-
+    let fixed = &ws.base.fixed;
     // A node has a voltage when a chain of elements joins it to the source or the reference.
-    ws.reach.iter_mut().for_each(|r| *r = false);
     ws.stack.clear();
     for k in 0..n {
-        if fixed[k].is_some() || ws.grounded[k] {
-            ws.reach[k] = true;
+        ws.reach[k] = fixed[k].is_some() || ws.grounded[k];
+        if ws.reach[k] {
             ws.stack.push(k);
         }
     }
     while let Some(i) = ws.stack.pop() {
         for j in 0..n {
-            if !ws.reach[j] && j != i && ws.y[i * n + j] != ZERO {
+            if !ws.reach[j] && ws.y[i * n + j] != ZERO {
                 ws.reach[j] = true;
                 ws.stack.push(j);
             }
@@ -333,11 +373,11 @@ fn nodal(
         }
     }
     solve_in_place(&mut ws.a, &mut ws.b, m).ok_or(SolveError::Singular)?;
-    let mut v = fixed;
+    ws.v.copy_from_slice(fixed);
     for (r, &i) in ws.unknown.iter().enumerate() {
-        v[i] = Some(ws.b[r]);
+        ws.v[i] = Some(ws.b[r]);
     }
-    Ok(v)
+    Ok(())
 }
 
 /// Equivalent admittance of a load admittance `y` in series with its branch `zb`:
@@ -448,7 +488,7 @@ fn gives_way(net: &Network, states: &[State], vt: &[Option<f64>], all: bool) -> 
 
 fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
     let n = net.loads().len();
-    let mut ws = Workspace::new(net.node_count());
+    let mut ws = Workspace::new(net)?;
     let mut states = vec![State::Running; n];
     let mut y: Vec<Complex64> = net
         .loads()
@@ -585,19 +625,18 @@ fn iterate(
             net.loads()
                 .iter()
                 .zip(y.iter())
-                .filter(|(p, _)| p.load.is_on())
-                .map(|(p, yk)| {
-                    let (a, b) = ends(net, p);
-                    Element {
-                        a,
-                        b,
-                        y: with_branch(*yk, p.branch),
-                    }
+                .zip(&ws.ends)
+                .filter(|((p, _), _)| p.load.is_on())
+                .map(|((p, yk), &(a, b))| Element {
+                    a,
+                    b,
+                    y: with_branch(*yk, p.branch),
                 }),
         );
-        let v = nodal(net, 1, &elements, &[], ws).map_err(|_| Unsettled::Singular)?;
+        nodal(&elements, &[], ws).map_err(|_| Unsettled::Singular)?;
+        let v = &ws.v;
         if !nonlinear {
-            return Ok((v, iteration));
+            return Ok((v.clone(), iteration));
         }
         // Work in squared magnitudes: this loop is the engine's hot path and hypot is slow.
         let mut change_sq: f64 = 0.0;
@@ -605,8 +644,8 @@ fn iterate(
             if !p.load.is_on() || !p.load.model().is_nonlinear() {
                 continue;
             }
-            let (a, b) = ends(net, p);
-            let Some(vp) = pair(&v, a, b) else {
+            let (a, b) = ws.ends[k];
+            let Some(vp) = pair(v, a, b) else {
                 continue;
             };
             let vt = at_terminals(vp, p.branch, y[k]);
@@ -620,13 +659,14 @@ fn iterate(
         // Return before updating the admittances, so the voltages handed back are exactly the
         // solution for the admittances handed back, and every current computed from them balances.
         if change <= tol {
-            return Ok((v, iteration));
+            return Ok((v.clone(), iteration));
         }
         for (k, p) in net.loads().iter().enumerate() {
             if let (true, true, Some(vt)) =
                 (p.load.is_on(), p.load.model().is_nonlinear(), last_vt[k])
             {
-                let target = p.characteristic.admittance(vt.norm(), states[k]);
+                // hypot is slow and this is the hot path; the squares stay far from overflow.
+                let target = p.characteristic.admittance(vt.norm_sqr().sqrt(), states[k]);
                 y[k] += (target - y[k]) * step;
             }
         }
@@ -839,7 +879,11 @@ fn solve_harmonics(
             }
             elements.push(Element { a, b, y: y_h[k] });
         }
-        let v = nodal(net, h, &elements, &injections, ws)?;
+        if ws.base.order != h {
+            ws.base = Base::new(net, h)?;
+        }
+        nodal(&elements, &injections, ws)?;
+        let v = &ws.v;
         let mut legs = [ZERO; 3];
         let mut into_neutral = ZERO;
         let mut shared = vec![ZERO; net.shared().len()];
@@ -848,7 +892,7 @@ fn solve_harmonics(
                 continue;
             }
             let (a, b) = ends(net, p);
-            let through = pair(&v, a, b).map(|vp| vp * y_h[k]).unwrap_or(ZERO);
+            let through = pair(v, a, b).map(|vp| vp * y_h[k]).unwrap_or(ZERO);
             let i = through + if is_source[k] { source_of[k] } else { ZERO };
             harmonic_sq[k] += i.norm_sqr();
             add_branch_current(&mut legs, &mut into_neutral, &mut shared, p.a, p.b, i);
