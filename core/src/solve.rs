@@ -321,6 +321,8 @@ fn earth_y(net: &Network) -> Complex64 {
 
 /// Solves the node voltages into `ws.v` at the order of `ws.base` (1 = fundamental, where the
 /// source EMFs act) with the loads' `elements` and `injections`.
+// The admittance matrix is stamped by node index; indices read more clearly than iterators here.
+#[allow(clippy::needless_range_loop)]
 fn nodal(
     elements: &[Element],
     injections: &[Injection],
