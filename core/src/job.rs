@@ -19,13 +19,21 @@
 //! ```
 //!
 //! Optional fields beyond those: `notes` (free text such as an address), `system.phases` (2 or 3 for a
-//! wye), `transformer.tap_pct` (−5, −2.5, 0, 2.5, 5) and `transformer.supply_v` (the primary voltage
-//! actually present), per conductor `length_ft`, `sets` (parallel sets), `conduit` (`pvc`, `aluminum`,
-//! `steel`) and `temperature_c`, `neutral.earth_return_ohms`, and per load `on`, `branch` (a conductor,
-//! one-way length), `input_min_v`/`input_max_v` (electronic supplies), `harmonics` (pairs of order and
-//! fraction of the fundamental current), `circuit`, `movable`, `slot` and `multiwire` (the id of a
-//! shared-neutral branch circuit listed at the top level under `multiwire`, each with `id`,
-//! `material`, `size`, `length_m` or `length_ft`, and `column_c`, the NEC Table 310.16 column).
+//! wye), `transformer.tap_pct` (−5, −2.5, 0, 2.5, 5), `transformer.supply_v` (the primary voltage
+//! actually present) and `transformer.connection` (`single-phase`, the default for split-phase;
+//! `delta-wye`, the default for wye; or `wye-wye`), per conductor `length_ft`, `sets` (parallel
+//! sets), `conduit` (`pvc`, `aluminum`, `steel`) and `temperature_c`, `neutral.earth_return_ohms`
+//! (the grounding electrode's path to the transformer neutral, beside the neutral conductor in every
+//! state), and per load `on`, `branch` (a conductor, one-way length), `input_min_v`/`input_max_v`
+//! (electronic supplies), `harmonics` (pairs of order and fraction of the fundamental current),
+//! `circuit`, `movable`, `slot` and `multiwire` (the id of a shared-neutral branch circuit listed at
+//! the top level under `multiwire`, each with `id`, `material`, `size`, `length_m` or `length_ft`
+//! (the cable's one-way length: its shared neutral, and the hot of each member load that gives no
+//! `branch` of its own; a member's own `branch` is its hot alone), and `column_c`, the NEC Table
+//! 310.16 column).
+//!
+//! A key the format does not define is kept verbatim (so the file round-trips) and refused by
+//! validation with the nearest known key (`loads[0].wats: unknown field (did you mean watts?)`).
 
 use serde::de::DeserializeOwned;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};

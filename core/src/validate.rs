@@ -2,9 +2,14 @@
 //! problem found, each with the JSON path of its field (`loads[2].watts`).
 //!
 //! Defaults filled here (and nowhere else): system 120 V to neutral at 60 Hz, wye with 3 phases,
-//! transformer X/R 1.5, tap 0 %, supply at the primary rating; a service without a neutral conductor
-//! gets one like its hots; conductors in PVC at 75 °C (AWG) or 70 °C (metric), one set; a load on,
-//! rated at the system's voltage for its connection, power factor 1, movable.
+//! transformer X/R 1.5, tap 0 %, supply at the primary rating, connection single-phase for a
+//! split-phase service and delta-wye for a wye; a service without a neutral conductor gets one like
+//! its hots; conductors in PVC at 75 °C (AWG) or 70 °C (metric), one set; a load on, rated at the
+//! system's voltage for its connection, power factor 1, movable; a shared-neutral cable in PVC at
+//! 75 °C.
+//!
+//! Every number has a physical minimum and maximum, named in its message; keys the format does not
+//! define are refused (see [`crate::fields`]).
 
 use crate::conductors::{Conductor, Conduit, Material, Size, FEET_PER_METRE};
 use crate::fields::{Checker, Rule};

@@ -379,6 +379,10 @@ proptest! {
                 prop_assert!(r.legs.values().all(|l| l.current_a.is_finite() && l.volts_to_neutral.is_none_or(f64::is_finite)));
             }
             Err(tapline_core::EngineError::Invalid(problems)) => prop_assert!(!problems.is_empty()),
+            // A validated job must never produce a figure the finiteness gate has to withhold.
+            Err(tapline_core::EngineError::Solve(tapline_core::solve::SolveError::NotFinite { path })) => {
+                prop_assert!(false, "{path} was not finite for {v}");
+            }
             Err(e) => prop_assert!(!e.to_string().is_empty()),
         }
     }
