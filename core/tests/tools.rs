@@ -224,6 +224,11 @@ fn bad_readings_name_their_field() {
             json!({"system":{"kind":"wye"},"readings":[]}),
             "system.kind: diagnosis from readings supports split-phase services only",
         ),
+        (
+            json!({"version":1,"system":{"kind":"split-phase"},"readings":[
+            {"l1_n_v":120,"l2_n_v":120,"l1_amps":5,"l2_a":1},{"l1_n_v":119,"l2_n_v":121,"l1_a":15,"l2_a":1}]}),
+            "readings[0].l1_amps: unknown field (did you mean l1_a?)",
+        ),
     ];
     for (v, expected) in cases {
         match parse_readings(&v.to_string()) {
