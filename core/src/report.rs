@@ -346,7 +346,7 @@ pub fn build(job: &Job, net: &Network, sol: &Solution) -> Report {
         ));
     }
     if matches!(job.neutral(), NeutralState::Loose { .. }) {
-        notes.push("A loose neutral is urgent to repair even while every appliance is within its range: the connection heats and gets worse.".to_string());
+        notes.push("A loose neutral is urgent to repair, even while every appliance is still within its range: the connection heats and gets worse.".to_string());
     }
     for m in job.multiwire().iter().filter(|m| !m.has_length) {
         notes.push(format!(

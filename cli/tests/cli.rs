@@ -20,7 +20,7 @@ fn tapline(args: &[&str], stdin: Option<&str>) -> Output {
 }
 
 fn data(name: &str) -> String {
-    format!("{}/tests/data/{name}", env!("CARGO_MANIFEST_DIR"))
+    format!("{}/../core/tests/data/{name}", env!("CARGO_MANIFEST_DIR"))
 }
 
 fn stdout_json(out: &Output) -> serde_json::Value {
@@ -310,5 +310,100 @@ fn balance_prints_before_after_and_moves() {
             .status
             .code(),
         Some(0)
+    );
+}
+
+#[test]
+fn every_command_has_help_and_the_program_a_version() {
+    let out = tapline(&["--help"], None);
+    assert_eq!(out.status.code(), Some(0));
+    let help = String::from_utf8_lossy(&out.stdout);
+    for c in [
+        "solve", "whatif", "sweep", "diagnose", "balance", "library", "demo",
+    ] {
+        assert!(help.contains(c), "{c} missing from\n{help}");
+    }
+    assert!(help.contains("CAUTION"), "{help}");
+    for c in ["solve", "whatif", "sweep", "diagnose", "balance"] {
+        let out = tapline(&[c, "--help"], None);
+        assert_eq!(out.status.code(), Some(0), "{c}");
+        let text = String::from_utf8_lossy(&out.stdout);
+        assert!(text.contains("Usage: tapline"), "{c}: {text}");
+        assert!(text.contains("verify every figure with a meter"), "{c}");
+    }
+    let out = tapline(&["--version"], None);
+    assert_eq!(out.status.code(), Some(0));
+    assert!(String::from_utf8_lossy(&out.stdout).starts_with("tapline "));
+}
+
+#[test]
+fn an_unknown_option_is_an_error_naming_it() {
+    let out = tapline(&["solve", "--bogus", &data("alder-court.json")], None);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(out.stdout.is_empty());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--bogus"));
+}
+
+#[test]
+fn text_format_is_a_summary_with_the_cautions() {
+    let out = tapline(
+        &["solve", "--format", "text", &data("alder-court.json")],
+        None,
+    );
+    assert_eq!(out.status.code(), Some(0));
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("Appliances:"), "{text}");
+    assert!(text.contains("Space heater"), "{text}");
+    assert!(text.contains("CAUTION: electrical work can kill"), "{text}");
+    assert!(text.contains("authority having jurisdiction"), "{text}");
+}
+
+/// Several files, or a stream of one job per line, give one result per input tagged with it; the
+/// exit code is the worst of them.
+#[test]
+fn bulk_checks_tag_each_result_with_its_input() {
+    let good = data("alder-court.json");
+    let out = tapline(&["solve", &good, "/nonexistent/job.json"], None);
+    assert_eq!(out.status.code(), Some(2));
+    let lines: Vec<serde_json::Value> = String::from_utf8_lossy(&out.stdout)
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap())
+        .collect();
+    assert_eq!(lines.len(), 2);
+    assert_eq!(lines[0]["input"], good.as_str());
+    assert_eq!(lines[0]["exit"], 0);
+    assert!(lines[0]["result"]["loads"].is_array());
+    assert_eq!(lines[1]["exit"], 2);
+    assert!(lines[1]["problems"][0]
+        .as_str()
+        .unwrap()
+        .contains("cannot read"));
+
+    let stream = concat!(
+        r#"{"system":{"kind":"split-phase"},"loads":[{"connect":"L1-N","model":"resistive","watts":1500}]}"#,
+        "\n",
+        r#"{"system":{"kind":"split-phase"},"loads":[{"connect":"L1-N","model":"resistive","wats":1500}]}"#,
+        "\n"
+    );
+    let out = tapline(&["solve", "--lines", "-"], Some(stream));
+    assert_eq!(out.status.code(), Some(2));
+    let lines: Vec<serde_json::Value> = String::from_utf8_lossy(&out.stdout)
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap())
+        .collect();
+    assert_eq!(lines[0]["input"], "standard input:1");
+    assert_eq!(lines[0]["exit"], 0);
+    assert_eq!(lines[1]["input"], "standard input:2");
+    let problems: Vec<&str> = lines[1]["problems"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(|p| p.as_str())
+        .collect();
+    assert!(
+        problems
+            .iter()
+            .any(|p| p.contains("loads[0].wats: unknown field (did you mean watts?)")),
+        "{problems:?}"
     );
 }

@@ -1,0 +1,147 @@
+//! Summaries for people (`--format text`): the engine's figures, rounded and labelled, with the
+//! cautions. Nothing here computes; it formats what the engine returned.
+
+use crate::args::CAUTIONS;
+use tapline_core::report::Report;
+use tapline_core::tools::balance::Balance;
+use tapline_core::tools::diagnose::Diagnosis;
+use tapline_core::whatif::WhatIf;
+
+fn volts(v: Option<f64>) -> String {
+    v.map(|v| format!("{v:.1} V"))
+        .unwrap_or_else(|| "undefined (floating)".to_string())
+}
+
+/// The report of one job.
+pub fn report(r: &Report) -> String {
+    let mut s = String::new();
+    let neutral = match (r.neutral.state, r.neutral.ohms) {
+        ("loose", Some(o)) => format!("loose ({o} Ω)"),
+        (state, _) => state.to_string(),
+    };
+    s.push_str(&format!("{} — {}, neutral {neutral}\n", r.name, r.system));
+    s.push_str(&format!("Voltage bands: {}\n", r.standard.name()));
+    for (leg, l) in &r.legs {
+        s.push_str(&format!(
+            "  {leg}: {} to neutral, {:.1} A{}\n",
+            volts(l.volts_to_neutral),
+            l.current_a,
+            l.band.map(|b| format!(", band {b}")).unwrap_or_default()
+        ));
+    }
+    s.push_str(&format!(
+        "  Neutral conductor: {:.1} A; earth path: {:.1} A; neutral bar {} from the transformer neutral\n",
+        r.neutral_current_a,
+        r.earth_current_a,
+        volts(r.neutral.panel_neutral_shift_v)
+    ));
+    if let Some(t) = &r.transformer {
+        s.push_str(&format!(
+            "  Transformer {} kVA ({}), turns ratio {:.2}, loaded {:.0} %; fault at its terminals {:.0} A line to line, {:.0} A line to neutral\n",
+            t.kva,
+            t.connection,
+            t.turns_ratio,
+            t.loading_pct,
+            t.fault_at_terminals.line_to_line_a,
+            t.fault_at_terminals.line_to_neutral_a
+        ));
+    }
+    if let Some(f) = &r.fault_at_service {
+        s.push_str(&format!(
+            "  Fault at the service equipment: {:.0} A line to line, {:.0} A line to neutral\n",
+            f.line_to_line_a, f.line_to_neutral_a
+        ));
+    }
+    s.push_str("Appliances:\n");
+    for l in &r.loads {
+        s.push_str(&format!(
+            "  {} ({}): {} — {}: {}\n",
+            l.name,
+            l.connect,
+            volts(l.voltage_v),
+            l.outcome.label(),
+            l.reason
+        ));
+    }
+    for m in &r.multiwire {
+        s.push_str(&format!("Shared neutral {}: {}\n", m.id, m.message));
+    }
+    for n in &r.notes {
+        s.push_str(&format!("Note: {n}\n"));
+    }
+    s.push('\n');
+    s.push_str(CAUTIONS);
+    s.push('\n');
+    s
+}
+
+/// The three neutral states side by side.
+pub fn what_if(w: &WhatIf) -> String {
+    let mut s = String::new();
+    s.push_str(&format!(
+        "{} — {}: each appliance with the neutral intact / loose ({} Ω) / open\n",
+        w.intact.name,
+        w.intact.system,
+        w.loose.neutral.ohms.unwrap_or_default()
+    ));
+    for (k, l) in w.intact.loads.iter().enumerate() {
+        s.push_str(&format!(
+            "  {} ({}): {} {} / {} {} / {} {}\n",
+            l.name,
+            l.connect,
+            volts(l.voltage_v),
+            l.outcome.label(),
+            volts(w.loose.loads[k].voltage_v),
+            w.loose.loads[k].outcome.label(),
+            volts(w.open.loads[k].voltage_v),
+            w.open.loads[k].outcome.label()
+        ));
+    }
+    s.push('\n');
+    s.push_str(CAUTIONS);
+    s.push('\n');
+    s
+}
+
+/// A diagnosis from readings.
+pub fn diagnosis(d: &Diagnosis) -> String {
+    let mut s = format!(
+        "Neutral {:.3} ± {:.3} Ω, each hot {:.3} ± {:.3} Ω: {:?}\n  {}\n  Likely location: {} — {}\n",
+        d.neutral_ohms,
+        d.neutral_ohms_uncertainty,
+        d.hot_ohms,
+        d.hot_ohms_uncertainty,
+        d.verdict,
+        d.reason,
+        d.likely_location,
+        d.location_reason
+    );
+    for c in &d.cautions {
+        s.push_str(&format!("  {c}\n"));
+    }
+    s.push('\n');
+    s.push_str(CAUTIONS);
+    s.push('\n');
+    s
+}
+
+/// A balancing plan.
+pub fn balance(b: &Balance) -> String {
+    let mut s = format!(
+        "Neutral current {:.1} A now, {:.1} A after {} move(s) (bus layout {}).\n",
+        b.before.neutral_current_a,
+        b.after.neutral_current_a,
+        b.moves.len(),
+        b.layout
+    );
+    for w in &b.swaps {
+        s.push_str(&format!("  {}\n", w.text));
+    }
+    for n in &b.notes {
+        s.push_str(&format!("Note: {n}\n"));
+    }
+    s.push_str("Move breakers only with the main off and the panel tested dead.\n\n");
+    s.push_str(CAUTIONS);
+    s.push('\n');
+    s
+}
