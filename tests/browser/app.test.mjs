@@ -104,7 +104,7 @@ describe('jobs', () => {
     await page.fill('[data-testid=job-name]', '9 Quarry Lane');
     await page.click('[data-testid=tab-loads]');
     await page.locator('[data-testid=load-watts]').first().fill('lots');
-    assert.match(await page.locator('.field.bad .field-error').first().textContent(), /must be a positive number/);
+    assert.match(await page.locator('.field.bad .field-error').first().textContent(), /must be a number from 0.1 to/);
     await page.click('[data-testid=tab-results]');
     assert.ok(await page.isVisible('[data-testid=problems]'));
     await page.reload();
@@ -154,7 +154,7 @@ describe('jobs', () => {
     await page.waitForSelector('[data-testid=import-problems]');
     const text = await page.textContent('[data-testid=import-problems]');
     assert.match(text, /loads\[0\]\.connect/);
-    assert.match(text, /loads\[0\]\.watts: must be a positive number/);
+    assert.match(text, /loads\[0\]\.watts: must be a number from 0.1 to/);
     assert.equal(await page.locator('[data-testid=job-card]').count(), 2);
     await shot(page, 'phone-import-error');
     await context.close();
