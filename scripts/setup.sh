@@ -57,6 +57,10 @@ fi
 
 if [ "$want" = "test" ]; then
   apt_ensure chromium chromium-driver ngspice brotli
+  # OpenDSS (dss-python from PyPI, pinned) in a project-local virtual environment.
+  command -v python3 >/dev/null || apt_ensure python3 python3-venv
+  say "OpenDSS cross-check environment (tests/opendss/.venv)"
+  tests/opendss/run.sh --setup-only
 fi
 
 say "fetching crates"

@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Sets up what is missing and runs every check: formatting, lints, the Rust unit, integration,
-# property and reference tests (including the ngspice cross-check), the release WebAssembly build,
-# the size budget and the browser tests in headless Chromium.
+# property and reference tests (including the ngspice cross-check), the OpenDSS cross-check, the
+# release WebAssembly build, the size budget and the browser tests in headless Chromium.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 scripts/setup.sh test
@@ -14,6 +14,8 @@ step "lints"
 cargo clippy --workspace --all-targets --locked -- -D warnings
 step "Rust tests (engine, command line, app logic)"
 cargo test --workspace --locked
+step "OpenDSS cross-check (dss-python, in process)"
+tests/opendss/run.sh
 step "release build"
 trunk build --release --offline
 step "size"

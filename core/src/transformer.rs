@@ -212,7 +212,8 @@ impl Transformer {
     /// - Split-phase: line to line I = V_LL/|Z + 2·Z_hot| with Z the full winding's impedance;
     ///   line to neutral I = V_LN/|Z_LN + Z_hot + Z_n| with Z_LN the center-tapped half's
     ///   impedance from [`Transformer::source_matrix`].
-    /// - Wye: three-phase I = V_LN/|Z_ph + Z_hot|; line to line I = V_LL/(2·|Z_ph + Z_hot|)
+    /// - Wye: three-phase I = V_LN/|Z_ph + Z_hot| (three-phase services only); line to line
+    ///   I = V_LL/(2·|Z_ph + Z_hot|)
     ///   (positive and negative sequence alike); line to neutral I = V_LN/|Z_ph + Z_hot + Z_n|,
     ///   taking the transformer's zero-sequence impedance equal to its positive-sequence one, as
     ///   for a delta-wye unit and for a wye-wye bank whose primary neutral is solidly grounded
@@ -235,12 +236,13 @@ impl Transformer {
                     three_phase_a: None,
                 }
             }
-            SystemKind::Wye { .. } => {
+            SystemKind::Wye { phases } => {
                 let z = self.winding_impedance(system) + hot;
                 Faults {
                     line_to_line_a: v_ll / (2.0 * z.norm()),
                     line_to_neutral_a: v / (z + neutral).norm(),
-                    three_phase_a: Some(v / z.norm()),
+                    // A service of two phases has no three-phase fault to mark.
+                    three_phase_a: (phases == 3).then(|| v / z.norm()),
                 }
             }
         }
