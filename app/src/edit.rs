@@ -867,6 +867,8 @@ mod tests {
             from: "L1",
             to: "L2",
             slot: None,
+            appliances: Vec::new(),
+            multiwire: None,
         };
         apply_moves(&mut job, &[m]);
         assert!(loads(&job).iter().all(|l| text_of(&l.connect) == "L2-N"));

@@ -99,6 +99,69 @@ fn forty_two_circuits() -> tapline_core::validate::Job {
     tapline_core::load_job(&job.to_string()).expect("valid").1
 }
 
+/// A generated 42-circuit panel: split-phase or three-phase, arbitrary ratings and power factors,
+/// some electronic loads with harmonics, some circuits not movable, and (every third panel) runs
+/// of identical circuits, the case that defeats a search without symmetry.
+fn generated_panel(seed: u64) -> tapline_core::validate::Job {
+    let mut x: u64 = seed.wrapping_mul(0x9E37_79B9_7F4A_7C15) | 1;
+    let mut next = move || {
+        x ^= x << 13;
+        x ^= x >> 7;
+        x ^= x << 17;
+        (x % 1_000_000) as f64 / 1_000_000.0
+    };
+    let three = seed % 2 == 1;
+    let legs = if three { 3 } else { 2 };
+    let identical = seed % 3 == 0;
+    let loads: Vec<serde_json::Value> = (0..42)
+        .map(|k| {
+            let (watts, pf) = if identical && k % 2 == 0 {
+                (1200.0, 1.0)
+            } else {
+                (40.0 + 1900.0 * next() * next(), 0.5 + 0.5 * next())
+            };
+            let mut l = json!({"name":format!("c{}", k + 1),
+                "connect":format!("L{}-N", (k / 2) % legs + 1),
+                "model":"impedance","watts":watts,"power_factor":pf,
+                "circuit":format!("{}", k + 1),"slot":k + 1,"movable":next() > 0.1});
+            if next() < 0.15 {
+                l["model"] = json!("electronic");
+                l["harmonics"] = json!([[3, 0.8], [5, 0.5]]);
+            }
+            l
+        })
+        .collect();
+    let system = if three {
+        json!({"kind":"wye"})
+    } else {
+        json!({"kind":"split-phase"})
+    };
+    let job = json!({"version":1,"name":"generated","system":system,"loads":loads});
+    tapline_core::load_job(&job.to_string()).expect("valid").1
+}
+
+/// Balancing's worst case, not just the demo: 200 generated panels, each balanced once, with the
+/// median and the worst printed beside the criterion figures (targets: median < 50 ms, worst
+/// < 200 ms).
+fn balance_worst_case(_: &mut Criterion) {
+    let mut times: Vec<f64> = (0..200)
+        .map(|seed| {
+            let panel = generated_panel(seed);
+            let t = std::time::Instant::now();
+            black_box(tapline_core::tools::balance::balance(
+                black_box(&panel),
+                tapline_core::tools::balance::Layout::Standard,
+            ));
+            t.elapsed().as_secs_f64() * 1e3
+        })
+        .collect();
+    times.sort_by(f64::total_cmp);
+    println!(
+        "balance, 200 generated 42-circuit panels: median {:.2} ms, worst {:.2} ms",
+        times[100], times[199]
+    );
+}
+
 fn tools(c: &mut Criterion) {
     let panel = forty_two_circuits();
     c.bench_function("balance 42 circuits", |b| {
@@ -153,5 +216,5 @@ fn benches(c: &mut Criterion) {
     }
 }
 
-criterion_group!(engine, benches, tools);
+criterion_group!(engine, benches, tools, balance_worst_case);
 criterion_main!(engine);
