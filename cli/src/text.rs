@@ -7,6 +7,14 @@ use tapline_core::tools::balance::Balance;
 use tapline_core::tools::diagnose::Diagnosis;
 use tapline_core::whatif::WhatIf;
 
+/// A summary followed by the cautions.
+fn with_cautions(mut s: String) -> String {
+    s.push('\n');
+    s.push_str(CAUTIONS);
+    s.push('\n');
+    s
+}
+
 fn volts(v: Option<f64>) -> String {
     v.map(|v| format!("{v:.1} V"))
         .unwrap_or_else(|| "undefined (floating)".to_string())
@@ -69,10 +77,7 @@ pub fn report(r: &Report) -> String {
     for n in &r.notes {
         s.push_str(&format!("Note: {n}\n"));
     }
-    s.push('\n');
-    s.push_str(CAUTIONS);
-    s.push('\n');
-    s
+    with_cautions(s)
 }
 
 /// The three neutral states side by side.
@@ -97,10 +102,7 @@ pub fn what_if(w: &WhatIf) -> String {
             w.open.loads[k].outcome.label()
         ));
     }
-    s.push('\n');
-    s.push_str(CAUTIONS);
-    s.push('\n');
-    s
+    with_cautions(s)
 }
 
 /// A diagnosis from readings.
@@ -119,10 +121,7 @@ pub fn diagnosis(d: &Diagnosis) -> String {
     for c in &d.cautions {
         s.push_str(&format!("  {c}\n"));
     }
-    s.push('\n');
-    s.push_str(CAUTIONS);
-    s.push('\n');
-    s
+    with_cautions(s)
 }
 
 /// A balancing plan.
@@ -140,8 +139,6 @@ pub fn balance(b: &Balance) -> String {
     for n in &b.notes {
         s.push_str(&format!("Note: {n}\n"));
     }
-    s.push_str("Move breakers only with the main off and the panel tested dead.\n\n");
-    s.push_str(CAUTIONS);
-    s.push('\n');
-    s
+    s.push_str("Move breakers only with the main off and the panel tested dead.\n");
+    with_cautions(s)
 }

@@ -193,153 +193,37 @@ impl<'a> ser::Serializer for &'a mut Walker {
     }
 }
 
-impl ser::SerializeSeq for Compound<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_element<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), Found> {
-        self.next(value)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
+/// Sequences and tuples of every kind walk their elements by index.
+macro_rules! by_index {
+    ($($trait:ident :: $method:ident),* $(,)?) => {
+        $(impl ser::$trait for Compound<'_> {
+            type Ok = ();
+            type Error = Found;
+            fn $method<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), Found> {
+                self.next(value)
+            }
+            fn end(self) -> Result<(), Found> {
+                Ok(())
+            }
+        })*
+    };
 }
 
-impl ser::SerializeTuple for Compound<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_element<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), Found> {
-        self.next(value)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
-}
-
-impl ser::SerializeTupleStruct for Compound<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_field<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), Found> {
-        self.next(value)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
-}
-
-impl ser::SerializeTupleVariant for Compound<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_field<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), Found> {
-        self.next(value)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
-}
-
-/// Map keys are written into the path as text (the report's maps are keyed by leg names).
-struct KeyText(String);
-
-impl ser::Serializer for &mut KeyText {
-    type Ok = ();
-    type Error = Found;
-    type SerializeSeq = ser::Impossible<(), Found>;
-    type SerializeTuple = ser::Impossible<(), Found>;
-    type SerializeTupleStruct = ser::Impossible<(), Found>;
-    type SerializeTupleVariant = ser::Impossible<(), Found>;
-    type SerializeMap = ser::Impossible<(), Found>;
-    type SerializeStruct = ser::Impossible<(), Found>;
-    type SerializeStructVariant = ser::Impossible<(), Found>;
-
-    accept!(
-        serialize_bool: bool, serialize_i8: i8, serialize_i16: i16, serialize_i32: i32,
-        serialize_i64: i64, serialize_u8: u8, serialize_u16: u16, serialize_u32: u32,
-        serialize_u64: u64, serialize_char: char, serialize_bytes: &[u8], serialize_f32: f32,
-        serialize_f64: f64,
-    );
-
-    fn serialize_str(self, v: &str) -> Result<(), Found> {
-        self.0 = v.to_string();
-        Ok(())
-    }
-    fn serialize_none(self) -> Result<(), Found> {
-        Ok(())
-    }
-    fn serialize_some<T: Serialize + ?Sized>(self, value: &T) -> Result<(), Found> {
-        value.serialize(self)
-    }
-    fn serialize_unit(self) -> Result<(), Found> {
-        Ok(())
-    }
-    fn serialize_unit_struct(self, _: &'static str) -> Result<(), Found> {
-        Ok(())
-    }
-    fn serialize_unit_variant(self, _: &'static str, _: u32, v: &'static str) -> Result<(), Found> {
-        self.0 = v.to_string();
-        Ok(())
-    }
-    fn serialize_newtype_struct<T: Serialize + ?Sized>(
-        self,
-        _: &'static str,
-        value: &T,
-    ) -> Result<(), Found> {
-        value.serialize(self)
-    }
-    fn serialize_newtype_variant<T: Serialize + ?Sized>(
-        self,
-        _: &'static str,
-        _: u32,
-        _: &'static str,
-        _: &T,
-    ) -> Result<(), Found> {
-        Ok(())
-    }
-    fn serialize_seq(self, _: Option<usize>) -> Result<Self::SerializeSeq, Found> {
-        Err(Found("map key".into()))
-    }
-    fn serialize_tuple(self, _: usize) -> Result<Self::SerializeTuple, Found> {
-        Err(Found("map key".into()))
-    }
-    fn serialize_tuple_struct(
-        self,
-        _: &'static str,
-        _: usize,
-    ) -> Result<Self::SerializeTupleStruct, Found> {
-        Err(Found("map key".into()))
-    }
-    fn serialize_tuple_variant(
-        self,
-        _: &'static str,
-        _: u32,
-        _: &'static str,
-        _: usize,
-    ) -> Result<Self::SerializeTupleVariant, Found> {
-        Err(Found("map key".into()))
-    }
-    fn serialize_map(self, _: Option<usize>) -> Result<Self::SerializeMap, Found> {
-        Err(Found("map key".into()))
-    }
-    fn serialize_struct(self, _: &'static str, _: usize) -> Result<Self::SerializeStruct, Found> {
-        Err(Found("map key".into()))
-    }
-    fn serialize_struct_variant(
-        self,
-        _: &'static str,
-        _: u32,
-        _: &'static str,
-        _: usize,
-    ) -> Result<Self::SerializeStructVariant, Found> {
-        Err(Found("map key".into()))
-    }
-}
+by_index!(
+    SerializeSeq::serialize_element,
+    SerializeTuple::serialize_element,
+    SerializeTupleStruct::serialize_field,
+    SerializeTupleVariant::serialize_field,
+);
 
 impl ser::SerializeMap for Compound<'_> {
     type Ok = ();
     type Error = Found;
     fn serialize_key<T: Serialize + ?Sized>(&mut self, key: &T) -> Result<(), Found> {
-        let mut k = KeyText(String::new());
-        key.serialize(&mut k)?;
-        self.key = Some(k.0);
+        // Map keys are written into the path as text (the report's maps are keyed by leg names).
+        self.key = serde_json::to_value(key)
+            .ok()
+            .and_then(|v| v.as_str().map(str::to_string));
         Ok(())
     }
     fn serialize_value<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), Found> {
@@ -351,35 +235,27 @@ impl ser::SerializeMap for Compound<'_> {
     }
 }
 
-impl ser::SerializeStruct for Compound<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_field<T: Serialize + ?Sized>(
-        &mut self,
-        key: &'static str,
-        value: &T,
-    ) -> Result<(), Found> {
-        self.walker.element(Step::Key(key.to_string()), value)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
+/// Structs of both kinds walk their fields by name.
+macro_rules! by_name {
+    ($($trait:ident),*) => {
+        $(impl ser::$trait for Compound<'_> {
+            type Ok = ();
+            type Error = Found;
+            fn serialize_field<T: Serialize + ?Sized>(
+                &mut self,
+                key: &'static str,
+                value: &T,
+            ) -> Result<(), Found> {
+                self.walker.element(Step::Key(key.to_string()), value)
+            }
+            fn end(self) -> Result<(), Found> {
+                Ok(())
+            }
+        })*
+    };
 }
 
-impl ser::SerializeStructVariant for Compound<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_field<T: Serialize + ?Sized>(
-        &mut self,
-        key: &'static str,
-        value: &T,
-    ) -> Result<(), Found> {
-        self.walker.element(Step::Key(key.to_string()), value)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
-}
+by_name!(SerializeStruct, SerializeStructVariant);
 
 #[cfg(test)]
 mod tests {
