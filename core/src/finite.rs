@@ -79,16 +79,11 @@ impl Walker {
 struct Compound<'a> {
     walker: &'a mut Walker,
     index: usize,
-    key: Option<String>,
 }
 
 impl<'a> Compound<'a> {
     fn new(walker: &'a mut Walker) -> Compound<'a> {
-        Compound {
-            walker,
-            index: 0,
-            key: None,
-        }
+        Compound { walker, index: 0 }
     }
 
     fn next<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), Found> {
@@ -219,16 +214,13 @@ by_index!(
 impl ser::SerializeMap for Compound<'_> {
     type Ok = ();
     type Error = Found;
-    fn serialize_key<T: Serialize + ?Sized>(&mut self, key: &T) -> Result<(), Found> {
-        // Map keys are written into the path as text (the report's maps are keyed by leg names).
-        self.key = serde_json::to_value(key)
-            .ok()
-            .and_then(|v| v.as_str().map(str::to_string));
+    fn serialize_key<T: Serialize + ?Sized>(&mut self, _: &T) -> Result<(), Found> {
+        // A map's entries are named by their place (`legs[1]`): the report's maps are small, and
+        // writing keys out as text would take a serializer of its own.
         Ok(())
     }
     fn serialize_value<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), Found> {
-        let key = self.key.take().unwrap_or_default();
-        self.walker.element(Step::Key(key), value)
+        self.next(value)
     }
     fn end(self) -> Result<(), Found> {
         Ok(())
@@ -305,6 +297,6 @@ mod tests {
             items: vec![],
             legs,
         };
-        assert_eq!(first_non_finite(&bad_leg).as_deref(), Some("legs.L2"));
+        assert_eq!(first_non_finite(&bad_leg).as_deref(), Some("legs[1]"));
     }
 }

@@ -412,7 +412,7 @@ impl Search {
                 .sum();
             buf.push((k, sq));
         }
-        buf.sort_by(|a, b| a.1.total_cmp(&b.1));
+        buf.sort_unstable_by(|a, b| a.1.total_cmp(&b.1));
         if let (true, Some(s)) = (stay_first, self.items[depth].stay) {
             if let Some(pos) = buf.iter().position(|(k, _)| *k == s) {
                 let stay = buf.remove(pos);
@@ -729,7 +729,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
             stay,
         });
     }
-    items.sort_by(|a, b| b.size().total_cmp(&a.size()));
+    items.sort_unstable_by(|a, b| b.size().total_cmp(&a.size()));
 
     let dirs: [Complex64; DIRECTIONS] = std::array::from_fn(|k| {
         Complex64::from_polar(1.0, std::f64::consts::PI * k as f64 / DIRECTIONS as f64)
@@ -779,7 +779,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
                 .fold(0.0, f64::max);
             let most = items[d].choices.iter().map(|c| c.moves).max().unwrap_or(0);
             r.extend(std::iter::repeat_n(per_move, most));
-            r.sort_by(|a, b| b.total_cmp(a));
+            r.sort_unstable_by(|a, b| b.total_cmp(a));
         }
         reach[d] = r;
     }
