@@ -1,24 +1,31 @@
 //! Loose-neutral diagnosis from meter readings on a split-phase service.
 //!
-//! The electrician reads L1-N, L2-N (and optionally L1-L2) and both leg currents, switches a known
-//! load on one leg, and reads again. With the hot legs' resistance R_h (each) and the service
-//! neutral's resistance R_n, and the source's open-circuit half voltages E₁ and E₂, every reading
-//! obeys (magnitudes, loads near unity power factor, currents in phase with their leg):
+//! The electrician reads L1-N, L2-N (and optionally L1-L2), both leg currents and, with a
+//! power-quality clamp, their power factors; switches a known load on one leg, and reads again.
+//! With the hot legs' resistance R_h (each) and the service neutral's resistance R_n, and the
+//! source's open-circuit half voltages E₁ and E₂, every reading obeys, in phasors (each leg
+//! current i referred to its own leg's voltage, lagging by its power factor, and the neutral
+//! carrying n = i₁ − i₂):
 //!
-//! - V₁ = E₁ − R_h·I₁ − R_n·(I₁ − I₂)
-//! - V₂ = E₂ − R_h·I₂ + R_n·(I₁ − I₂)
-//! - V₁₂ = E₁ + E₂ − R_h·(I₁ + I₂)
+//! - V₁ = |E₁ − R_h·i₁ − R_n·n|
+//! - V₂ = |E₂ − R_h·i₂ + R_n·n|
+//! - V₁₂ = |E₁ + E₂ − R_h·(i₁ + i₂)|
 //!
 //! Loading a leg lowers its own voltage through the hot and the neutral and raises the other leg
 //! by the neutral's drop (Ohm's law and Kirchhoff's laws on the three-wire circuit; common
-//! practice). The four unknowns are fitted by least squares; their uncertainty follows from the
-//! meters' resolution (σ = resolution/√12 for a quantised reading) or from the fit's residuals,
-//! whichever is larger.
+//! practice). The four unknowns are fitted to the magnitudes by least squares (Gauss–Newton). Their
+//! uncertainty combines the meters' resolution (σ = resolution/√12 for a quantised reading, or
+//! the fit's residuals if larger) with the model's bias (the same fit with reactive conductors,
+//! X/R 0.4). A verdict is given only when the whole interval lies on one side of each threshold;
+//! otherwise the diagnosis is inconclusive and says how large a test load would settle it. A fit
+//! that no conductor can have (negative resistance beyond its uncertainty) or that no steady
+//! supply explains is reported as such, not as a verdict.
 
 use crate::fields::{Checker, Problem, Rule, Unknown};
 use crate::job::{Raw, SystemFile};
 use crate::system::SystemKind;
 use crate::validate::validate_system;
+use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 
 /// Readings format version.
@@ -69,6 +76,9 @@ pub struct ReadingFile {
     pub l1_l2_v: Raw<f64>,
     pub l1_a: Raw<f64>,
     pub l2_a: Raw<f64>,
+    /// Each leg current's power factor (lagging), as a power-quality clamp shows; 1 if absent.
+    pub l1_pf: Raw<f64>,
+    pub l2_pf: Raw<f64>,
     /// Keys this format does not define; validation refuses them.
     #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
     pub unknown: Unknown,
@@ -92,6 +102,9 @@ pub struct Reading {
     pub v12: Option<f64>,
     pub i1: f64,
     pub i2: f64,
+    /// Lagging power factors of the leg currents, in (0, 1].
+    pub pf1: f64,
+    pub pf2: f64,
 }
 
 /// Validated readings.
@@ -109,6 +122,32 @@ pub enum Verdict {
     Healthy,
     Suspect,
     Dangerous,
+    /// The resistance's interval straddles a threshold: the readings cannot tell.
+    Inconclusive,
+    /// The fit is physically impossible (a negative resistance beyond its uncertainty, or
+    /// readings that no single service explains): no verdict.
+    NotPhysical,
+}
+
+impl Verdict {
+    /// Which verdict wins when two are combined: what cannot be trusted first, then the worse.
+    fn rank(self) -> u8 {
+        match self {
+            Verdict::Healthy => 0,
+            Verdict::Suspect => 1,
+            Verdict::Inconclusive => 2,
+            Verdict::Dangerous => 3,
+            Verdict::NotPhysical => 4,
+        }
+    }
+
+    fn worse(self, other: Verdict) -> Verdict {
+        if other.rank() > self.rank() {
+            other
+        } else {
+            self
+        }
+    }
 }
 
 /// One fitted location (all readings at the panel, or all at the meter).
@@ -119,8 +158,16 @@ pub struct Fit {
     pub neutral_ohms_uncertainty: f64,
     pub hot_ohms: f64,
     pub hot_ohms_uncertainty: f64,
+    /// The part of the neutral's uncertainty that comes from the model (conductor reactance
+    /// neglected), ohms; included in `neutral_ohms_uncertainty`.
+    pub model_bias_ohms: f64,
     pub source_v: [f64; 2],
     pub residual_rms_v: f64,
+    /// The meters' own noise per reading (resolution/√12), volts.
+    pub meter_noise_v: f64,
+    pub degrees_of_freedom: usize,
+    /// The largest change of a leg current between the readings, amperes.
+    pub current_change_a: f64,
     pub readings_used: usize,
 }
 
@@ -131,8 +178,15 @@ pub struct Diagnosis {
     pub neutral_ohms_uncertainty: f64,
     pub hot_ohms: f64,
     pub hot_ohms_uncertainty: f64,
+    /// The worse of the neutral's and the hots' verdicts, at the panel and at the meter.
     pub verdict: Verdict,
     pub reason: String,
+    /// The hot conductors' own verdict, against the same thresholds.
+    pub hot_verdict: Verdict,
+    /// When inconclusive: the change of leg current a resistive test load should make between
+    /// readings to settle it, amperes.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub settle_with_test_load_a: Option<f64>,
     pub thresholds_ohms: [f64; 2],
     pub thresholds_source: &'static str,
     pub at_panel: Option<Fit>,
@@ -252,13 +306,21 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
         c.unknown_keys(
             &r.unknown,
             &format!("readings[{i}]"),
-            &["label", "at", "l1_n_v", "l2_n_v", "l1_l2_v", "l1_a", "l2_a"],
+            &[
+                "label", "at", "l1_n_v", "l2_n_v", "l1_l2_v", "l1_a", "l2_a", "l1_pf", "l2_pf",
+            ],
         );
         let v1 = c.required_number(&r.l1_n_v, &path("l1_n_v"), Rule::Positive(1000.0));
         let v2 = c.required_number(&r.l2_n_v, &path("l2_n_v"), Rule::Positive(1000.0));
         let v12 = c.number(&r.l1_l2_v, &path("l1_l2_v"), Rule::Positive(2000.0));
         let i1 = c.required_number(&r.l1_a, &path("l1_a"), Rule::NonNegative(10_000.0));
         let i2 = c.required_number(&r.l2_a, &path("l2_a"), Rule::NonNegative(10_000.0));
+        let pf1 = c
+            .number(&r.l1_pf, &path("l1_pf"), Rule::Between(0.05, 1.0))
+            .or(r.l1_pf.is_absent().then_some(1.0));
+        let pf2 = c
+            .number(&r.l2_pf, &path("l2_pf"), Rule::Between(0.05, 1.0))
+            .or(r.l2_pf.is_absent().then_some(1.0));
         let at = match c.text(&r.at, &path("at")) {
             None | Some("panel") => Some(Place::Panel),
             Some("meter") => Some(Place::Meter),
@@ -271,7 +333,9 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
             }
         };
         let label = c.text(&r.label, &path("label")).unwrap_or("").to_string();
-        if let (Some(v1), Some(v2), Some(i1), Some(i2), Some(at)) = (v1, v2, i1, i2, at) {
+        if let (Some(v1), Some(v2), Some(i1), Some(i2), Some(at), Some(pf1), Some(pf2)) =
+            (v1, v2, i1, i2, at, pf1, pf2)
+        {
             readings.push(Reading {
                 label: if label.is_empty() {
                     format!("reading {}", i + 1)
@@ -284,6 +348,8 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
                 v12,
                 i1,
                 i2,
+                pf1,
+                pf2,
             });
         }
     }
@@ -325,6 +391,11 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
     }
 }
 
+/// The conductors' reactance as a fraction of their resistance assumed by the second fit that
+/// measures the model's bias: a loose connection is resistive, but the hot and neutral conductors
+/// of a service drop have X/R of roughly 0.3 to 0.5 (common practice, no source).
+pub const BIAS_X_OVER_R: f64 = 0.4;
+
 /// Solves the 4 × 4 normal equations by Gaussian elimination with partial pivoting; returns the
 /// solution and the inverse's diagonal (for the uncertainties), or `None` when singular.
 fn solve4(ata: [[f64; 4]; 4], atb: [f64; 4]) -> Option<([f64; 4], [f64; 4])> {
@@ -361,38 +432,123 @@ fn solve4(ata: [[f64; 4]; 4], atb: [f64; 4]) -> Option<([f64; 4], [f64; 4])> {
     Some((x, diag))
 }
 
-/// Fits E₁, E₂, R_h and R_n to one place's readings.
-fn fit(readings: &[&Reading], vres: f64, ares: f64) -> Result<Fit, DiagnoseError> {
-    let mut rows: Vec<([f64; 4], f64)> = Vec::new();
+/// One measured magnitude and how the model's phasor for it depends on the unknowns
+/// p = (E₁, E₂, R_h, R_n): V = c₀·E₁ + c₁·E₂ + c₂·R_h + c₃·R_n (complex coefficients).
+struct Row {
+    coef: [Complex64; 4],
+    measured: f64,
+}
+
+impl Row {
+    fn phasor(&self, p: &[f64; 4]) -> Complex64 {
+        self.coef.iter().zip(p).map(|(c, x)| c * x).sum()
+    }
+}
+
+/// The model's equations for one place's readings, in phasors. Each leg current is referred to
+/// its own leg's voltage, lagging by its power factor: i₁ = I₁∠−acos pf₁, i₂ = I₂∠−acos pf₂, and
+/// the neutral carries n = i₁ − i₂ (the legs are 180° apart). With the conductors' impedance
+/// Z = R·(1 + jk) (k = X/R):
+///
+/// - V₁ = E₁ − Z_h·i₁ − Z_n·n
+/// - V₂ = E₂ − Z_h·i₂ + Z_n·n
+/// - V₁₂ = E₁ + E₂ − Z_h·(i₁ + i₂)
+///
+/// Kirchhoff's voltage law on the three-wire circuit (common practice); the meters read
+/// magnitudes.
+fn rows(readings: &[&Reading], k: f64) -> Vec<Row> {
+    let zk = Complex64::new(1.0, k);
+    let one = Complex64::new(1.0, 0.0);
+    let zero = Complex64::new(0.0, 0.0);
+    let mut out = Vec::new();
     for r in readings {
-        let d = r.i1 - r.i2;
-        rows.push(([1.0, 0.0, -r.i1, -d], r.v1));
-        rows.push(([0.0, 1.0, -r.i2, d], r.v2));
+        let i1 = Complex64::from_polar(r.i1, -r.pf1.acos());
+        let i2 = Complex64::from_polar(r.i2, -r.pf2.acos());
+        let n = i1 - i2;
+        out.push(Row {
+            coef: [one, zero, -zk * i1, -zk * n],
+            measured: r.v1,
+        });
+        out.push(Row {
+            coef: [zero, one, -zk * i2, zk * n],
+            measured: r.v2,
+        });
         if let Some(v12) = r.v12 {
-            rows.push(([1.0, 1.0, -(r.i1 + r.i2), 0.0], v12));
+            out.push(Row {
+                coef: [one, one, -zk * (i1 + i2), zero],
+                measured: v12,
+            });
         }
     }
-    let mut ata = [[0.0; 4]; 4];
-    let mut atb = [0.0; 4];
-    for (a, b) in &rows {
-        for i in 0..4 {
-            atb[i] += a[i] * b;
-            for j in 0..4 {
-                ata[i][j] += a[i] * a[j];
+    out
+}
+
+/// Least squares of the magnitudes |V(p)| against the readings, by Gauss–Newton from the
+/// in-phase (first-order) solution; returns p, the inverse normal matrix's diagonal and the
+/// residuals' sum of squares.
+fn least_squares(rows: &[Row]) -> Option<([f64; 4], [f64; 4], f64)> {
+    let normal = |jac: &dyn Fn(&Row) -> ([f64; 4], f64)| {
+        let mut ata = [[0.0; 4]; 4];
+        let mut atb = [0.0; 4];
+        for row in rows {
+            let (a, b) = jac(row);
+            for i in 0..4 {
+                atb[i] += a[i] * b;
+                for j in 0..4 {
+                    ata[i][j] += a[i] * a[j];
+                }
             }
         }
+        (ata, atb)
+    };
+    // First order: |V| ≈ Re(V) when the drops are small against the source voltage.
+    let (ata, atb) = normal(&|row: &Row| {
+        (
+            [
+                row.coef[0].re,
+                row.coef[1].re,
+                row.coef[2].re,
+                row.coef[3].re,
+            ],
+            row.measured,
+        )
+    });
+    let (mut p, mut inv) = solve4(ata, atb)?;
+    for _ in 0..20 {
+        // d|V|/dp = Re(conj(V)·dV/dp)/|V|; the step solves JᵀJ·Δ = Jᵀ·(measured − |V|).
+        let (ata, atb) = normal(&|row: &Row| {
+            let v = row.phasor(&p);
+            let mag = v.norm().max(1e-9);
+            let a = std::array::from_fn(|i| (v.conj() * row.coef[i]).re / mag);
+            (a, row.measured - v.norm())
+        });
+        let (step, diag) = solve4(ata, atb)?;
+        inv = diag;
+        for (x, d) in p.iter_mut().zip(step) {
+            *x += d;
+        }
+        if step.iter().map(|d| d.abs()).fold(0.0, f64::max) < 1e-12 {
+            break;
+        }
     }
-    let (x, inv_diag) = solve4(ata, atb).ok_or_else(|| {
-        DiagnoseError::Degenerate("the readings do not separate the hot and neutral resistances: change the load on one leg by a few amperes between readings".to_string())
-    })?;
-    let rss: f64 = rows
+    let rss = rows
         .iter()
-        .map(|(a, b)| {
-            let pred: f64 = a.iter().zip(&x).map(|(ai, xi)| ai * xi).sum();
-            (b - pred).powi(2)
-        })
+        .map(|row| (row.measured - row.phasor(&p).norm()).powi(2))
         .sum();
-    let dof = rows.len().saturating_sub(4);
+    Some((p, inv, rss))
+}
+
+/// Fits E₁, E₂, R_h and R_n to one place's readings.
+fn fit(readings: &[&Reading], vres: f64, ares: f64) -> Result<Fit, DiagnoseError> {
+    let degenerate = || {
+        DiagnoseError::Degenerate("the readings do not separate the hot and neutral resistances: change the load on one leg by a few amperes between readings".to_string())
+    };
+    let main = rows(readings, 0.0);
+    let (x, inv_diag, rss) = least_squares(&main).ok_or_else(degenerate)?;
+    // The model's bias: the same fit with reactive conductors. The difference is what neglecting
+    // the conductors' reactance can do to the answer (zero when every current is in phase).
+    let (xb, _, _) = least_squares(&rows(readings, BIAS_X_OVER_R)).ok_or_else(degenerate)?;
+    let dof = main.len().saturating_sub(4);
     // Quantisation noise of a reading: resolution/√12 (common practice). Current errors enter
     // through the resistances they multiply.
     let sigma_meter_sq = (vres * vres + (x[2] * x[2] + x[3] * x[3]) * ares * ares) / 12.0;
@@ -401,27 +557,61 @@ fn fit(readings: &[&Reading], vres: f64, ares: f64) -> Result<Fit, DiagnoseError
     } else {
         sigma_meter_sq
     };
+    let meter_n = 2.0 * (sigma_sq * inv_diag[3].max(0.0)).sqrt();
+    let meter_h = 2.0 * (sigma_sq * inv_diag[2].max(0.0)).sqrt();
+    let bias_n = (xb[3] - x[3]).abs();
+    let bias_h = (xb[2] - x[2]).abs();
     Ok(Fit {
         neutral_ohms: x[3],
-        neutral_ohms_uncertainty: 2.0 * (sigma_sq * inv_diag[3].max(0.0)).sqrt(),
+        neutral_ohms_uncertainty: meter_n.hypot(bias_n),
         hot_ohms: x[2],
-        hot_ohms_uncertainty: 2.0 * (sigma_sq * inv_diag[2].max(0.0)).sqrt(),
+        hot_ohms_uncertainty: meter_h.hypot(bias_h),
+        model_bias_ohms: bias_n,
         source_v: [x[0], x[1]],
-        residual_rms_v: (rss / rows.len() as f64).sqrt(),
+        residual_rms_v: (rss / main.len() as f64).sqrt(),
+        meter_noise_v: sigma_meter_sq.sqrt(),
+        degrees_of_freedom: dof,
+        current_change_a: current_change(readings),
         readings_used: readings.len(),
     })
 }
 
-/// The verdict for a neutral resistance, with its one-line reason.
-pub fn verdict_for(ohms: f64, uncertainty: f64) -> (Verdict, String) {
-    let shift = ohms * 10.0;
-    let v = if ohms <= HEALTHY_MAX_OHMS {
+/// The largest change of a leg current between the readings, amperes.
+fn current_change(readings: &[&Reading]) -> f64 {
+    let spread = |f: fn(&Reading) -> f64| {
+        let lo = readings.iter().map(|r| f(r)).fold(f64::INFINITY, f64::min);
+        let hi = readings
+            .iter()
+            .map(|r| f(r))
+            .fold(f64::NEG_INFINITY, f64::max);
+        hi - lo
+    };
+    spread(|r| r.i1).max(spread(|r| r.i2))
+}
+
+/// What a resistance and its uncertainty say against the thresholds: a verdict only when the
+/// whole interval R ± U lies on one side of every threshold.
+fn judge(ohms: f64, uncertainty: f64) -> Verdict {
+    if ohms + uncertainty < 0.0 {
+        return Verdict::NotPhysical;
+    }
+    let (lo, hi) = (ohms - uncertainty, ohms + uncertainty);
+    let straddles = |t: f64| lo < t && t < hi;
+    if straddles(HEALTHY_MAX_OHMS) || straddles(SUSPECT_MAX_OHMS) {
+        Verdict::Inconclusive
+    } else if ohms <= HEALTHY_MAX_OHMS {
         Verdict::Healthy
     } else if ohms <= SUSPECT_MAX_OHMS {
         Verdict::Suspect
     } else {
         Verdict::Dangerous
-    };
+    }
+}
+
+/// The verdict for a neutral resistance with its uncertainty, and its one-line reason.
+pub fn verdict_for(ohms: f64, uncertainty: f64) -> (Verdict, String) {
+    let shift = ohms * 10.0;
+    let v = judge(ohms, uncertainty);
     let what = match v {
         Verdict::Healthy => "within what a sound service neutral shows",
         Verdict::Suspect => {
@@ -430,11 +620,39 @@ pub fn verdict_for(ohms: f64, uncertainty: f64) -> (Verdict, String) {
         Verdict::Dangerous => {
             "a loose or failing neutral: appliances are at risk; treat it as urgent"
         }
+        Verdict::Inconclusive => {
+            "the readings cannot tell which side of a threshold it is on: take them again with a larger test load"
+        }
+        Verdict::NotPhysical => {
+            "a negative resistance, which no conductor has: the readings are inconsistent; take them again"
+        }
     };
     (
         v,
         format!("neutral {ohms:.3} Ω ± {uncertainty:.3} Ω moves the neutral about {shift:.1} V per 10 A of imbalance: {what}"),
     )
+}
+
+/// Readings that scatter around the fit by more than this are not from a steady supply, volts
+/// (common practice, no source: a steady utility supply holds within a few tenths of a volt over
+/// the minute the readings take).
+const MAX_STEADY_RESIDUAL_V: f64 = 0.25;
+
+/// The change of leg current that would shrink the meters' part of the uncertainty enough to put
+/// the neutral's interval on one side of the threshold it straddles (that part falls as one over
+/// the current change), or `None` when the model's bias alone is too large for any test load.
+fn settling_load(f: &Fit) -> Option<f64> {
+    let distance = [HEALTHY_MAX_OHMS, SUSPECT_MAX_OHMS]
+        .iter()
+        .map(|t| (f.neutral_ohms - t).abs())
+        .fold(f64::INFINITY, f64::min);
+    let meter = (f.neutral_ohms_uncertainty.powi(2) - f.model_bias_ohms.powi(2))
+        .max(0.0)
+        .sqrt();
+    let room = (distance * distance - f.model_bias_ohms * f.model_bias_ohms)
+        .max(0.0)
+        .sqrt();
+    (room > 0.0 && meter > 0.0).then(|| f.current_change_a * meter / room * 1.1)
 }
 
 /// Diagnoses validated readings.
@@ -462,11 +680,48 @@ pub fn diagnose(r: &Readings) -> Result<Diagnosis, DiagnoseError> {
         .as_ref()
         .or(at_meter.as_ref())
         .ok_or_else(|| DiagnoseError::Degenerate("no readings".into()))?;
-    let (verdict, reason) = verdict_for(main.neutral_ohms, main.neutral_ohms_uncertainty);
+    let (neutral_verdict, mut reason) =
+        verdict_for(main.neutral_ohms, main.neutral_ohms_uncertainty);
+    // Every fitted place and both conductors count: the verdict is the worst of them.
+    let mut verdict = neutral_verdict;
+    let mut hot_verdict = Verdict::Healthy;
+    for f in at_panel.iter().chain(at_meter.iter()) {
+        let n = judge(f.neutral_ohms, f.neutral_ohms_uncertainty);
+        let h = judge(f.hot_ohms, f.hot_ohms_uncertainty);
+        hot_verdict = hot_verdict.worse(h);
+        verdict = verdict.worse(n).worse(h);
+        // Readings that scatter far beyond the meters' noise cannot come from one service with
+        // a steady supply (the supply voltage probably changed between readings).
+        if f.degrees_of_freedom > 0
+            && f.residual_rms_v > (4.0 * f.meter_noise_v).max(MAX_STEADY_RESIDUAL_V)
+        {
+            verdict = Verdict::NotPhysical;
+            reason = format!(
+                "the readings scatter by {:.2} V around the best fit, far more than the meters' {:.2} V: the supply voltage probably changed between readings; take them again in quick succession",
+                f.residual_rms_v, f.meter_noise_v
+            );
+        }
+    }
+    if verdict != neutral_verdict && verdict != Verdict::NotPhysical {
+        reason.push_str(&format!(
+            "; each hot {:.3} Ω ± {:.3} Ω",
+            main.hot_ohms, main.hot_ohms_uncertainty
+        ));
+    }
+    let settle_with_test_load_a = (verdict == Verdict::Inconclusive)
+        .then(|| settling_load(main))
+        .flatten();
+    if let Some(a) = settle_with_test_load_a {
+        reason.push_str(&format!(
+            "; a resistive test load changing one leg's current by about {a:.0} A (a {:.0} W heater at 120 V) would settle it",
+            a * 120.0
+        ));
+    }
     let (likely_location, location_reason) = match (&at_meter, &at_panel) {
         (Some(m), Some(p)) => {
             let building = p.neutral_ohms - m.neutral_ohms;
-            if verdict == Verdict::Healthy {
+            let sound = |f: &Fit| judge(f.neutral_ohms, f.neutral_ohms_uncertainty) == Verdict::Healthy;
+            if sound(m) && sound(p) {
                 ("unknown", "the neutral reads healthy from both places".to_string())
             } else if m.neutral_ohms > building {
                 (
@@ -492,6 +747,8 @@ pub fn diagnose(r: &Readings) -> Result<Diagnosis, DiagnoseError> {
         hot_ohms_uncertainty: main.hot_ohms_uncertainty,
         verdict,
         reason,
+        hot_verdict,
+        settle_with_test_load_a,
         thresholds_ohms: [HEALTHY_MAX_OHMS, SUSPECT_MAX_OHMS],
         thresholds_source: "common practice, no source: 1 % and 5 % of 120 V per 10 A of imbalance",
         at_panel,
