@@ -3,10 +3,11 @@
 # gzip -9 and brotli -q 11, prints a table and fails over the brotli budget.
 set -euo pipefail
 cd "$(dirname "$0")/.."
-# Budget for the whole app, brotli-compressed: 310 KB (310 000 bytes). Raised from 300 KB when the
-# engine gained the finiteness gate, shared neutrals, Norton harmonics and the shared-neutral-safe
-# balancer; the size work (wasm breakdown, cuts towards 180 KB) is still to do.
-BUDGET=310000
+# Budget for the whole app, brotli-compressed: 315 KB (315 000 bytes). Raised from 300 KB when the
+# engine gained the finiteness gate, shared neutrals, Norton harmonics, the shared-neutral-safe
+# balancer and the phasor diagnosis; the size work (wasm breakdown, cuts towards 180 KB) is still
+# to do.
+BUDGET=315000
 [ -d dist ] || { echo "size-check: no dist/; build first (scripts/build.sh)" >&2; exit 1; }
 printf '%-44s %10s %10s %10s\n' file raw gzip brotli
 total_raw=0; total_gz=0; total_br=0

@@ -87,6 +87,23 @@ pub enum Command {
         /// Position 1 is on L2 rather than L1.
         #[arg(long)]
         flipped: bool,
+        /// Balance only the appliances running now (by default every appliance counts at its
+        /// rating, switched on or not).
+        #[arg(long)]
+        running_only: bool,
+    },
+    /// The dip when a motor starts: every appliance's voltage before and at the instant of
+    /// starting, visible flicker, and whether the motor can start.
+    #[command(after_help = AFTER_HELP)]
+    Start {
+        #[command(flatten)]
+        inputs: Inputs,
+        /// The motor's name in the job.
+        #[arg(long, value_name = "NAME")]
+        load: String,
+        /// How often it starts, per hour (sets the flicker threshold).
+        #[arg(long, default_value_t = 4.0)]
+        starts_per_hour: f64,
     },
     /// Typical appliances (JSON).
     Library,

@@ -9,7 +9,7 @@ use serde_json::Value;
 use std::ffi::OsString;
 use std::io::{IsTerminal, Read, Write};
 use std::process::ExitCode;
-use tapline_core::tools::{balance, diagnose};
+use tapline_core::tools::{balance, diagnose, start};
 use tapline_core::whatif::{sweep, sweep_csv, sweep_points, what_if};
 use tapline_core::{library, load_job, report, EngineError};
 
@@ -172,17 +172,46 @@ pub fn run(command: Command, terminal: bool) -> Outcome {
                 done(&d, text::diagnosis(&d))
             })
         }
-        Command::Balance { inputs, flipped } => {
+        Command::Balance {
+            inputs,
+            flipped,
+            running_only,
+        } => {
             let f = format(inputs.format);
             let layout = if flipped {
                 balance::Layout::Flipped
             } else {
                 balance::Layout::Standard
             };
+            let basis = if running_only {
+                balance::Basis::RunningNow
+            } else {
+                balance::Basis::Rated
+            };
             each(&inputs, f, |text| {
                 let (_, job) = load_job(text).map_err(engine)?;
-                let b = balance::balance(&job, layout);
+                let b = balance::balance_with(&job, layout, basis);
                 done(&b, text::balance(&b))
+            })
+        }
+        Command::Start {
+            inputs,
+            load,
+            starts_per_hour,
+        } => {
+            let f = format(inputs.format);
+            if !(starts_per_hour.is_finite() && (0.01..=3600.0).contains(&starts_per_hour)) {
+                return Outcome::failed(bad(format!(
+                    "--starts-per-hour: must be a number from 0.01 to 3600 (got {starts_per_hour})"
+                )));
+            }
+            each(&inputs, f, |text| {
+                let (_, job) = load_job(text).map_err(engine)?;
+                let s = start::start(&job, &load, starts_per_hour).map_err(|e| match e {
+                    start::StartError::Solve(s) => engine(EngineError::Solve(s)),
+                    other => bad(other.to_string()),
+                })?;
+                done(&s, text::start(&s))
             })
         }
     }

@@ -5,6 +5,7 @@ use crate::args::CAUTIONS;
 use tapline_core::report::Report;
 use tapline_core::tools::balance::Balance;
 use tapline_core::tools::diagnose::Diagnosis;
+use tapline_core::tools::start::Start;
 use tapline_core::whatif::WhatIf;
 
 /// A summary followed by the cautions.
@@ -140,5 +141,43 @@ pub fn balance(b: &Balance) -> String {
         s.push_str(&format!("Note: {n}\n"));
     }
     s.push_str("Move breakers only with the main off and the panel tested dead.\n");
+    with_cautions(s)
+}
+
+/// A motor start.
+pub fn start(st: &Start) -> String {
+    let mut s = format!(
+        "Starting {}: {:.0} A locked rotor ({}), power factor {:.2}; it gets {} at the instant of starting{}\n",
+        st.motor,
+        st.locked_rotor_a,
+        st.locked_rotor_basis,
+        st.start_pf,
+        volts(st.motor_v),
+        if st.can_start { "" } else { " and may not start" }
+    );
+    for a in &st.appliances {
+        s.push_str(&format!(
+            "  {} ({}): {} → {}{}{}\n",
+            a.name,
+            a.connect,
+            volts(a.before_v),
+            volts(a.during_v),
+            a.dip_pct
+                .map(|p| if p < 0.0 {
+                    format!(", rises {:.1} %", -p)
+                } else {
+                    format!(", dip {p:.1} %")
+                })
+                .unwrap_or_default(),
+            if a.flicker_visible {
+                ", visible flicker"
+            } else {
+                ""
+            }
+        ));
+    }
+    for n in &st.notes {
+        s.push_str(&format!("Note: {n}\n"));
+    }
     with_cautions(s)
 }

@@ -407,3 +407,44 @@ fn bulk_checks_tag_each_result_with_its_input() {
         "{problems:?}"
     );
 }
+
+#[test]
+fn start_reports_the_dip_and_names_a_bad_load() {
+    let out = tapline(
+        &["start", "--load", "Freezer", &data("alder-court.json")],
+        None,
+    );
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let r = stdout_json(&out);
+    assert!(r["locked_rotor_a"].as_f64().unwrap() > 0.0);
+    assert!(r["appliances"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .all(|a| a["dip_pct"].is_number()));
+    let out = tapline(
+        &["start", "--load", "Nope", &data("alder-court.json")],
+        None,
+    );
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr)
+        .contains("--load: the job has no appliance named \"Nope\""));
+    let out = tapline(
+        &["start", "--load", "Space heater", &data("alder-court.json")],
+        None,
+    );
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("is not a motor"));
+}
+
+#[test]
+fn balance_can_count_only_what_runs() {
+    let out = tapline(&["balance", "--running-only", &data("panel.json")], None);
+    assert_eq!(out.status.code(), Some(0));
+    assert_eq!(stdout_json(&out)["basis"], "running");
+}

@@ -26,7 +26,9 @@
 //! (the grounding electrode's path to the transformer neutral, beside the neutral conductor in every
 //! state), and per load `on`, `branch` (a conductor, one-way length), `input_min_v`/`input_max_v`
 //! (electronic supplies), `harmonics` (pairs of order and fraction of the fundamental current),
-//! `circuit`, `movable`, `slot` and `multiwire` (the id of a shared-neutral branch circuit listed at
+//! `circuit`, `movable`, `slot`, a motor's starting draw (`locked_rotor_a`, or `code_letter` with
+//! `hp` per NEC Table 430.7(B), or `locked_rotor_multiple` of its running current; 5 if none is
+//! given, common practice; and `start_pf`, 0.35 if absent) and `multiwire` (the id of a shared-neutral branch circuit listed at
 //! the top level under `multiwire`, each with `id`, `material`, `size`, `length_m` or `length_ft`
 //! (the cable's one-way length: its shared neutral, and the hot of each member load that gives no
 //! `branch` of its own; a member's own `branch` is its hot alone), and `column_c`, the NEC Table
@@ -284,6 +286,20 @@ pub struct LoadFile {
     /// The id of the shared-neutral branch circuit this load is on.
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub multiwire: Raw<String>,
+    /// A motor's locked-rotor amperes at rated voltage.
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub locked_rotor_a: Raw<f64>,
+    /// A motor's NEC Table 430.7(B) code letter (with `hp`).
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub code_letter: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub hp: Raw<f64>,
+    /// A motor's locked-rotor current as a multiple of its running current.
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub locked_rotor_multiple: Raw<f64>,
+    /// A motor's power factor while starting (locked rotor).
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub start_pf: Raw<f64>,
     /// Keys this format does not define, kept so the file round-trips; validation refuses them.
     #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
     pub unknown: Unknown,

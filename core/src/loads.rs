@@ -26,9 +26,10 @@ pub const LAMP_MIN_FRACTION: f64 = 0.01;
 /// stalls at V/V_r = 1/√2 ≈ 0.71 with rated load torque.
 pub const MOTOR_BREAKDOWN_TORQUE: f64 = 2.0;
 
-/// Locked-rotor current as a multiple of rated current, and its power factor (common practice, no
-/// source: small single-phase and compressor motors draw about five to six times running current
-/// at a power factor near 0.35 when stalled).
+/// Locked-rotor current as a multiple of rated current when the job gives neither the current nor
+/// a code letter, and its power factor (common practice, no source: small single-phase and
+/// compressor motors draw about five to six times running current at a power factor near 0.35
+/// when stalled or starting).
 pub const LOCKED_ROTOR_MULTIPLE: f64 = 5.0;
 /// See [`LOCKED_ROTOR_MULTIPLE`].
 pub const LOCKED_ROTOR_PF: f64 = 0.35;
@@ -136,6 +137,54 @@ pub enum State {
     DroppedOut,
 }
 
+/// NEC Table 430.7(B): locked-rotor kVA per horsepower by code letter, the top of each letter's
+/// range (from memory; the table gives ranges, and the top is the conservative figure for a
+/// voltage dip). V is "22.4 and up"; 25 is used.
+// 3.14 is the table's top of letter A, not an approximation of π.
+#[allow(clippy::approx_constant)]
+pub const CODE_LETTERS: [(char, f64); 20] = [
+    ('A', 3.14),
+    ('B', 3.54),
+    ('C', 3.99),
+    ('D', 4.49),
+    ('E', 4.99),
+    ('F', 5.59),
+    ('G', 6.29),
+    ('H', 7.09),
+    ('J', 7.99),
+    ('K', 8.99),
+    ('L', 9.99),
+    ('M', 11.19),
+    ('N', 12.49),
+    ('P', 13.99),
+    ('R', 15.99),
+    ('S', 17.99),
+    ('T', 19.99),
+    ('U', 22.39),
+    ('V', 25.0),
+    // Keeps the array's length fixed; no letter W exists.
+    ('-', 0.0),
+];
+
+/// Where a motor's locked-rotor current came from.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum LockedRotorBasis {
+    /// Given in amperes.
+    Given,
+    /// From the NEC Table 430.7(B) code letter and the horsepower.
+    CodeLetter { letter: char, hp: f64 },
+    /// A multiple of running current (given, or [`LOCKED_ROTOR_MULTIPLE`]).
+    Multiple(f64),
+}
+
+/// A motor's starting (locked-rotor) draw at rated voltage.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct LockedRotor {
+    pub amps: f64,
+    pub power_factor: f64,
+    pub basis: LockedRotorBasis,
+}
+
 /// A validated load.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Load {
@@ -156,6 +205,8 @@ pub struct Load {
     pub(crate) movable: bool,
     pub(crate) slot: Option<u32>,
     pub(crate) multiwire: Option<String>,
+    /// A motor's locked-rotor draw; `None` for other models.
+    pub(crate) locked_rotor: Option<LockedRotor>,
 }
 
 impl Load {
@@ -200,6 +251,11 @@ impl Load {
     /// The shared-neutral branch circuit this load is on, if any.
     pub fn multiwire(&self) -> Option<&str> {
         self.multiwire.as_deref()
+    }
+
+    /// A motor's locked-rotor (starting) draw at rated voltage.
+    pub fn locked_rotor(&self) -> Option<LockedRotor> {
+        self.locked_rotor
     }
 
     /// Complex power at rated voltage, S = P + jP·tan θ (VA).
@@ -249,14 +305,20 @@ impl Load {
     pub fn characteristic(&self) -> Characteristic {
         let vr2 = self.rated_v * self.rated_v;
         let s_conj = self.rated_complex_power().conj();
-        let i_lr = LOCKED_ROTOR_MULTIPLE * self.rated_current();
+        let (i_lr, pf_lr) = match self.locked_rotor {
+            Some(lr) => (lr.amps, lr.power_factor),
+            None => (
+                LOCKED_ROTOR_MULTIPLE * self.rated_current(),
+                LOCKED_ROTOR_PF,
+            ),
+        };
         Characteristic {
             model: self.model,
             rated_v: self.rated_v,
             g_rated: self.rated_w / vr2,
             s_conj,
             floor_v: self.low_limit_v().unwrap_or(0.0).max(1e-3 * self.rated_v),
-            y_stalled: Complex64::from_polar(i_lr / self.rated_v, -LOCKED_ROTOR_PF.acos()),
+            y_stalled: Complex64::from_polar(i_lr / self.rated_v, -pf_lr.acos()),
         }
     }
 }

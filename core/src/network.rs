@@ -109,6 +109,8 @@ pub struct Network {
     pub(crate) service_neutral: Complex64,
     pub(crate) shared: Vec<SharedNeutral>,
     pub(crate) loads: Vec<Placed>,
+    /// The motor held at locked rotor (the instant it starts), by index into `loads`.
+    pub(crate) starting: Option<usize>,
 }
 
 /// An impedance below [`SOLID_OHMS`] is a solid connection.
@@ -194,6 +196,7 @@ impl Network {
             service_neutral: snap(service.neutral.impedance()),
             shared,
             loads,
+            starting: None,
         };
         net.set_neutral(job.neutral());
         net.source_y1 = net.source_y_at(1);
@@ -209,6 +212,17 @@ impl Network {
             NeutralState::Loose { ohms } => path_of(zn + ohms),
             NeutralState::Open => NeutralPath::Open,
         };
+    }
+
+    /// Holds motor `k` at locked rotor, switched on, as at the instant it starts (`None`: no
+    /// motor starting).
+    pub fn set_starting(&mut self, k: Option<usize>) {
+        self.starting = k;
+        if let Some(k) = k {
+            if let Some(p) = self.loads.get_mut(k) {
+                p.load.on = true;
+            }
+        }
     }
 
     /// Opens or closes shared neutral `k` (for "if the shared neutral opens").

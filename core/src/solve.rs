@@ -464,7 +464,10 @@ fn gives_way(net: &Network, states: &[State], vt: &[Option<f64>], all: bool) -> 
             .iter()
             .enumerate()
             .filter(|(k, p)| {
-                p.load.is_on() && states[*k] == State::Running && p.load.low_limit_v().is_some()
+                p.load.is_on()
+                    && net.starting != Some(*k)
+                    && states[*k] == State::Running
+                    && p.load.low_limit_v().is_some()
             })
             .filter(move |(k, p)| {
                 !only_below
@@ -497,6 +500,12 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
         .iter()
         .map(|p| p.load.admittance(p.load.rated_v(), State::Running))
         .collect();
+    // A motor at the instant of starting is held at locked rotor whatever its voltage.
+    if let Some(k) = net.starting {
+        states[k] = State::Stalled;
+        y[k] = net.loads()[k].load.admittance(0.0, State::Stalled);
+    }
+    let held = |k: usize| net.starting == Some(k);
     // A restart is a trial: when it pulls any running load below its limit (or collapses the
     // supply), the states before it come back and that load stays down. Each load is tried once,
     // so the passes are bounded.
@@ -545,6 +554,7 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
             .enumerate()
             .filter(|(k, p)| {
                 p.load.is_on()
+                    && !held(*k)
                     && states[*k] == State::Running
                     && match (vt[*k], p.load.low_limit_v()) {
                         (Some(v), Some(limit)) => v < limit * (1.0 - 1e-9),
@@ -576,6 +586,7 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
             .enumerate()
             .filter(|(k, p)| {
                 p.load.is_on()
+                    && !held(*k)
                     && states[*k] != State::Running
                     && !tried[*k]
                     && matches!((vt[*k], p.load.restart_v()), (Some(v), Some(r)) if v >= r)

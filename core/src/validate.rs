@@ -14,7 +14,10 @@
 use crate::conductors::{Conductor, Conduit, Material, Size, FEET_PER_METRE};
 use crate::fields::{Checker, Rule};
 use crate::job::{ConductorFile, JobFile, LoadFile, Raw, SystemFile, JOB_VERSION};
-use crate::loads::{Connection, Load, Model, ELECTRONIC_DEFAULT_RANGE};
+use crate::loads::{
+    Connection, Load, LockedRotor, LockedRotorBasis, Model, CODE_LETTERS, ELECTRONIC_DEFAULT_RANGE,
+    LOCKED_ROTOR_MULTIPLE, LOCKED_ROTOR_PF,
+};
 use crate::system::{System, SystemKind};
 use crate::transformer::{Connection as Winding, Transformer, TAP_STEPS_PCT};
 use serde_json::Value;
@@ -97,6 +100,11 @@ pub const LOAD_KEYS: &[&str] = &[
     "movable",
     "slot",
     "multiwire",
+    "locked_rotor_a",
+    "code_letter",
+    "hp",
+    "locked_rotor_multiple",
+    "start_pf",
 ];
 /// See [`JOB_KEYS`].
 pub const MULTIWIRE_KEYS: &[&str] = &[
@@ -769,7 +777,27 @@ fn validate_load(
             "only an electronic load has an input range",
         );
     }
+    let locked_rotor = match (&model, rated_v, pf, watts) {
+        (Some(Model::Motor), Some(vr), Some(pf), Some(w)) => {
+            locked_rotor(c, f, path, vr, w / (pf * vr))
+        }
+        _ => {
+            for (raw_absent, field) in [
+                (f.locked_rotor_a.is_absent(), "locked_rotor_a"),
+                (f.code_letter.is_absent(), "code_letter"),
+                (f.hp.is_absent(), "hp"),
+                (f.locked_rotor_multiple.is_absent(), "locked_rotor_multiple"),
+                (f.start_pf.is_absent(), "start_pf"),
+            ] {
+                if !raw_absent && model.is_some() {
+                    c.fail(&p(field), "only a motor has a starting draw");
+                }
+            }
+            Some(None)
+        }
+    };
     Some(Load {
+        locked_rotor: locked_rotor?,
         name: name?,
         connection: connection?,
         model: model?,
@@ -784,6 +812,83 @@ fn validate_load(
         slot,
         multiwire,
     })
+}
+
+/// A motor's locked-rotor draw from whichever of its three forms the job gives (at most one).
+fn locked_rotor(
+    c: &mut Checker,
+    f: &LoadFile,
+    path: &str,
+    rated_v: f64,
+    running_a: f64,
+) -> Option<Option<LockedRotor>> {
+    let p = |field: &str| format!("{path}.{field}");
+    let pf = c
+        .number(&f.start_pf, &p("start_pf"), Rule::Between(0.05, 1.0))
+        .or(f.start_pf.is_absent().then_some(LOCKED_ROTOR_PF))?;
+    let given = [
+        !f.locked_rotor_a.is_absent(),
+        !f.code_letter.is_absent() || !f.hp.is_absent(),
+        !f.locked_rotor_multiple.is_absent(),
+    ];
+    if given.iter().filter(|g| **g).count() > 1 {
+        c.fail(
+            &p("locked_rotor_a"),
+            "give one of locked_rotor_a, code_letter with hp, or locked_rotor_multiple",
+        );
+        return None;
+    }
+    let (amps, basis) = if given[0] {
+        let a = c.number(
+            &f.locked_rotor_a,
+            &p("locked_rotor_a"),
+            Rule::Between(running_a, 50.0 * running_a.max(1.0)),
+        )?;
+        (a, LockedRotorBasis::Given)
+    } else if given[1] {
+        let letter = c
+            .text(&f.code_letter, &p("code_letter"))
+            .map(|t| t.trim().to_ascii_uppercase());
+        let kva_per_hp = match letter.as_deref().and_then(|t| {
+            let ch = t.chars().next()?;
+            (t.len() == 1).then_some(ch)
+        }) {
+            Some(ch) => CODE_LETTERS
+                .iter()
+                .find(|(l, _)| *l == ch && ch != '-')
+                .map(|(l, k)| (*l, *k)),
+            None => None,
+        };
+        let Some((letter, kva)) = kva_per_hp else {
+            c.fail(
+                &p("code_letter"),
+                "is required with hp: a letter A to V (NEC Table 430.7(B); no I, O or Q)",
+            );
+            return None;
+        };
+        let hp = c.required_number(&f.hp, &p("hp"), Rule::Between(0.05, 500.0))?;
+        (
+            kva * hp * 1000.0 / rated_v,
+            LockedRotorBasis::CodeLetter { letter, hp },
+        )
+    } else {
+        let m = c
+            .number(
+                &f.locked_rotor_multiple,
+                &p("locked_rotor_multiple"),
+                Rule::Between(1.0, 12.0),
+            )
+            .or(f
+                .locked_rotor_multiple
+                .is_absent()
+                .then_some(LOCKED_ROTOR_MULTIPLE))?;
+        (m * running_a, LockedRotorBasis::Multiple(m))
+    };
+    Some(Some(LockedRotor {
+        amps,
+        power_factor: pf,
+        basis,
+    }))
 }
 
 fn validate_multiwire(

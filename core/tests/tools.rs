@@ -569,3 +569,24 @@ fn readings_from_a_changing_supply_are_not_physical() {
         d.reason
     );
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 48, .. ProptestConfig::default() })]
+
+    /// The dip grows with the motor's starting current and with the service's impedance.
+    #[test]
+    fn the_dip_grows_with_starting_current_and_service_impedance(
+        lra in 10.0..80.0f64, extra in 5.0..40.0f64, r in 0.01..0.3f64,
+    ) {
+        let dip = |lra: f64, r: f64| {
+            let j = job(&json!({"system":{"kind":"split-phase"},
+                "service":{"hot":{"r_ohm":r,"x_ohm":r / 3.0},"neutral":{"r_ohm":r,"x_ohm":r / 3.0}},
+                "loads":[
+                {"name":"Lamp","connect":"L1-N","model":"lamp","watts":100},
+                {"name":"M","connect":"L1-N","model":"motor","watts":600,"power_factor":0.8,"locked_rotor_a":lra}]}));
+            tapline_core::tools::start::start(&j, "M", 4.0).unwrap().appliances[0].dip_pct.unwrap()
+        };
+        prop_assert!(dip(lra + extra, r) > dip(lra, r));
+        prop_assert!(dip(lra, r * 1.5) > dip(lra, r));
+    }
+}

@@ -1,5 +1,6 @@
-//! Field tools built on the pipeline: loose-neutral diagnosis from meter readings and panel
-//! balancing.
+//! Field tools built on the pipeline: loose-neutral diagnosis from meter readings, panel
+//! balancing, and the dip when a motor starts.
 
 pub mod balance;
 pub mod diagnose;
+pub mod start;

@@ -420,3 +420,90 @@ fn tiny_values_solve_like_solid_connections() {
         );
     }
 }
+
+/// Source: NEC Table 430.7(B) (from memory: code letter G, 5.6–6.29 kVA per horsepower; the top of
+/// the range is used) and a hand calculation of the starting instant. A 1 hp code G motor at 120 V
+/// draws 6290/120 = 52.42 A at locked rotor, power factor 0.35, so it is the impedance
+/// Z_lr = 120/52.42 ∠acos 0.35. Beside a 1500 W heater (9.6 Ω) on L1, behind a hot and a neutral of
+/// 0.1 + j0.05 Ω each on a stiff source: before, the heater gets 120·|9.6/(9.6 + Z_loop)|; while
+/// the motor starts, 120·|Z_p/(Z_p + Z_loop)| with Z_p = 9.6 ∥ Z_lr and Z_loop = 0.2 + j0.1 Ω. The
+/// motor's starting torque is (V/120)² × 150 % of full-load torque (NEMA design B, from memory).
+#[test]
+fn the_dip_when_a_motor_starts() {
+    use num_complex::Complex64;
+    let j = crate::common::job(
+        &json!({"system":{"kind":"split-phase"},
+            "service":{"hot":{"r_ohm":0.1,"x_ohm":0.05},"neutral":{"r_ohm":0.1,"x_ohm":0.05}},
+            "loads":[
+            {"name":"Heater","connect":"L1-N","model":"resistive","watts":1500},
+            {"name":"Pump","connect":"L1-N","model":"motor","watts":746,"power_factor":0.75,
+             "code_letter":"G","hp":1}]})
+        .to_string(),
+    );
+    let s = tapline_core::tools::start::start(&j, "Pump", 4.0).unwrap();
+    close(s.locked_rotor_a, 6290.0 / 120.0, 1e-9);
+    let z_loop = Complex64::new(0.2, 0.1);
+    let z_lr = Complex64::from_polar(120.0 / (6290.0 / 120.0), 0.35f64.acos());
+    let r = Complex64::new(9.6, 0.0);
+    let z_p = r * z_lr / (r + z_lr);
+    let before = 120.0 * (r / (r + z_loop)).norm();
+    let during = 120.0 * (z_p / (z_p + z_loop)).norm();
+    let heater = &s.appliances[0];
+    close(heater.before_v.unwrap(), before, 1e-9);
+    close(heater.during_v.unwrap(), during, 1e-9);
+    close(
+        heater.dip_pct.unwrap(),
+        (before - during) / before * 100.0,
+        1e-9,
+    );
+    close(s.motor_v.unwrap(), during, 1e-9);
+    close(
+        s.starting_torque_pct.unwrap(),
+        (during / 120.0).powi(2) * 150.0,
+        1e-9,
+    );
+    assert_eq!(s.can_start, (during / 120.0).powi(2) * 1.5 >= 1.0);
+}
+
+/// Source: common practice, no source (Kirchhoff's laws): with the neutral loose, the starting
+/// current also crosses the loose neutral, so the motor's own leg dips further and the other leg
+/// rises; with the neutral sound the other leg barely moves.
+#[test]
+fn a_loose_neutral_deepens_the_dip_and_raises_the_other_leg() {
+    let job = |neutral: serde_json::Value| {
+        crate::common::job(
+            &json!({"system":{"kind":"split-phase"},
+                "transformer":{"kva":25,"primary_v":7200,"impedance_pct":2.0},
+                "service":{"hot":{"r_ohm":0.03,"x_ohm":0.01},"neutral":{"r_ohm":0.03,"x_ohm":0.01}},
+                "neutral":neutral,"loads":[
+                {"name":"Lamp 1","connect":"L1-N","model":"lamp","watts":60},
+                {"name":"Lamp 2","connect":"L2-N","model":"lamp","watts":60},
+                {"name":"Compressor","connect":"L1-N","model":"motor","watts":1200,"power_factor":0.8,
+                 "locked_rotor_a":60}]})
+            .to_string(),
+        )
+    };
+    let sound =
+        tapline_core::tools::start::start(&job(json!({"state":"intact"})), "Compressor", 4.0)
+            .unwrap();
+    let loose = tapline_core::tools::start::start(
+        &job(json!({"state":"loose","ohms":1.0})),
+        "Compressor",
+        4.0,
+    )
+    .unwrap();
+    let dip = |s: &tapline_core::tools::start::Start, k: usize| s.appliances[k].dip_pct.unwrap();
+    assert!(
+        dip(&loose, 0) > dip(&sound, 0) + 1.0,
+        "{} vs {}",
+        dip(&loose, 0),
+        dip(&sound, 0)
+    );
+    assert!(
+        dip(&loose, 1) < -1.0,
+        "the other leg rises: {}",
+        dip(&loose, 1)
+    );
+    assert!(dip(&sound, 1).abs() < 1.0);
+    assert!(loose.appliances[0].flicker_visible);
+}
