@@ -105,6 +105,10 @@ pub enum Command {
         #[arg(long, default_value_t = 4.0)]
         starts_per_hour: f64,
     },
+    /// Every standard size of one run side by side: its drop, its ampacity, and the smallest that
+    /// meets both (the run format is documented in the engine's `tools/size.rs`).
+    #[command(after_help = AFTER_HELP)]
+    Size(Inputs),
     /// Typical appliances (JSON).
     Library,
     /// The demo job (JSON).

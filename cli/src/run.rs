@@ -9,7 +9,7 @@ use serde_json::Value;
 use std::ffi::OsString;
 use std::io::{IsTerminal, Read, Write};
 use std::process::ExitCode;
-use tapline_core::tools::{balance, diagnose, start};
+use tapline_core::tools::{balance, diagnose, size, start};
 use tapline_core::whatif::{sweep, sweep_csv, sweep_points, what_if};
 use tapline_core::{library, load_job, report, EngineError};
 
@@ -192,6 +192,20 @@ pub fn run(command: Command, terminal: bool) -> Outcome {
                 let (_, job) = load_job(text).map_err(engine)?;
                 let b = balance::balance_with(&job, layout, basis);
                 done(&b, text::balance(&b))
+            })
+        }
+        Command::Size(inputs) => {
+            let f = format(inputs.format);
+            each(&inputs, f, |text| {
+                let run = size::parse_run(text).map_err(|ps| {
+                    bad(ps
+                        .iter()
+                        .map(|p| p.to_string())
+                        .collect::<Vec<_>>()
+                        .join("\n"))
+                })?;
+                let table = size::size(&run);
+                done(&table, text::sizing(&table))
             })
         }
         Command::Start {

@@ -5,6 +5,7 @@ use crate::args::CAUTIONS;
 use tapline_core::report::Report;
 use tapline_core::tools::balance::Balance;
 use tapline_core::tools::diagnose::Diagnosis;
+use tapline_core::tools::size::Sizing;
 use tapline_core::tools::start::Start;
 use tapline_core::whatif::WhatIf;
 
@@ -177,6 +178,38 @@ pub fn start(st: &Start) -> String {
         ));
     }
     for n in &st.notes {
+        s.push_str(&format!("Note: {n}\n"));
+    }
+    with_cautions(s)
+}
+
+/// A sizing table.
+pub fn sizing(t: &Sizing) -> String {
+    let mut s = format!(
+        "{:.1} A at power factor {:.2} over {:.0} ft, {:.0} V circuit, target {} %:\n",
+        t.amps, t.power_factor, t.length_ft, t.circuit_v, t.target_pct
+    );
+    for c in &t.candidates {
+        s.push_str(&format!(
+            "  {:>10}: drop {:.2} V ({:.2} %){}{}\n",
+            c.size,
+            c.drop_v,
+            c.drop_pct,
+            c.ampacity_a
+                .map(|a| format!(", {a:.0} A at {:.0} °C", t.column_c))
+                .unwrap_or_default(),
+            if c.meets_drop && c.meets_ampacity != Some(false) {
+                "  ok"
+            } else {
+                ""
+            }
+        ));
+    }
+    s.push_str(&format!(
+        "Smallest that meets both: {}\n",
+        t.smallest.as_deref().unwrap_or("none")
+    ));
+    for n in &t.notes {
         s.push_str(&format!("Note: {n}\n"));
     }
     with_cautions(s)

@@ -448,3 +448,25 @@ fn balance_can_count_only_what_runs() {
     assert_eq!(out.status.code(), Some(0));
     assert_eq!(stdout_json(&out)["basis"], "running");
 }
+
+#[test]
+fn size_prints_the_table_and_names_bad_fields() {
+    let good = r#"{"version":1,"system":{"kind":"split-phase"},"run":{"connect":"L1-N","amps":16,"length_ft":100}}"#;
+    let out = tapline(&["size", "-"], Some(good));
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert_eq!(stdout_json(&out)["smallest"], "8 AWG");
+    let bad = r#"{"version":1,"system":{"kind":"split-phase"},"run":{"connect":"L1-N","amp":16,"length_ft":100}}"#;
+    let out = tapline(&["size", "-"], Some(bad));
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("run.amp: unknown field (did you mean amps?)"),
+        "{err}"
+    );
+    assert!(err.contains("run.amps: is required (or watts)"), "{err}");
+}

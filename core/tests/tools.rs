@@ -590,3 +590,32 @@ proptest! {
         prop_assert!(dip(lra, r * 1.5) > dip(lra, r));
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 64, .. ProptestConfig::default() })]
+
+    /// The chosen size always meets the target and the ampacity when any size does, no smaller
+    /// size does, and the drop falls as the size grows.
+    #[test]
+    fn the_chosen_size_meets_the_target_whenever_any_size_does(
+        amps in 1.0..400.0f64, feet in 10.0..2000.0f64, pf in 0.5..1.0f64, target in 1.0..6.0f64,
+        al in any::<bool>(), across in any::<bool>(),
+    ) {
+        let text = json!({"version":1,"system":{"kind":"split-phase"},"run":{
+            "connect": if across { "L1-L2" } else { "L1-N" }, "amps":amps, "length_ft":feet,
+            "power_factor":pf, "target_pct":target, "material": if al { "al" } else { "cu" }}}).to_string();
+        let t = tapline_core::tools::size::size(&tapline_core::tools::size::parse_run(&text).unwrap());
+        let ok = |c: &tapline_core::tools::size::Candidate| c.meets_drop && c.meets_ampacity != Some(false);
+        match &t.smallest {
+            Some(s) => {
+                let k = t.candidates.iter().position(|c| &c.size == s).unwrap();
+                prop_assert!(ok(&t.candidates[k]));
+                prop_assert!(t.candidates[..k].iter().all(|c| !ok(c)));
+            }
+            None => prop_assert!(t.candidates.iter().all(|c| !ok(c))),
+        }
+        for w in t.candidates.windows(2) {
+            prop_assert!(w[1].drop_v <= w[0].drop_v + 1e-12, "{} {} then {} {}", w[0].size, w[0].drop_v, w[1].size, w[1].drop_v);
+        }
+    }
+}

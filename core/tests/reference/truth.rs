@@ -507,3 +507,28 @@ fn a_loose_neutral_deepens_the_dip_and_raises_the_other_leg() {
     assert!(dip(&sound, 1).abs() < 1.0);
     assert!(loose.appliances[0].flicker_visible);
 }
+
+/// Source: NEC Chapter 9 Table 9 (uncoated copper in PVC: 14 AWG 3.1, 12 AWG 2.0, 10 AWG 1.2,
+/// 8 AWG 0.78 Ω/kft; read), IEEE Std 141's drop VD ≈ I·(R cos θ + X sin θ) and NEC 210.19(A)
+/// Informational Note No. 4 (3 % for a branch circuit). 16 A at unity power factor over 100 ft,
+/// out and back: 12 AWG drops 2 × 16 × 0.200 = 6.40 V, 10 AWG 3.84 V (over 3.6 V), 8 AWG 2.50 V:
+/// the smallest to meet 3 % of 120 V is 8 AWG. On a balanced multiwire run the neutral carries
+/// nothing, so 12 AWG drops only its hot's 3.20 V and meets it.
+#[test]
+fn sizing_a_branch_run_for_three_percent() {
+    let run = |extra: &str| {
+        tapline_core::tools::size::parse_run(&format!(
+            r#"{{"version":1,"system":{{"kind":"split-phase"}},"run":{{"connect":"L1-N","amps":16,"length_ft":100{extra}}}}}"#
+        ))
+        .unwrap()
+    };
+    let t = tapline_core::tools::size::size(&run(""));
+    let drop = |size: &str| t.candidates.iter().find(|c| c.size == size).unwrap().drop_v;
+    close(drop("12 AWG"), 2.0 * 16.0 * 0.200, 1e-9);
+    close(drop("10 AWG"), 2.0 * 16.0 * 0.120, 1e-9);
+    close(drop("8 AWG"), 2.0 * 16.0 * 0.078, 1e-9);
+    assert_eq!(t.smallest.as_deref(), Some("8 AWG"));
+    let shared = tapline_core::tools::size::size(&run(r#","neutral_amps":0"#));
+    assert_eq!(shared.smallest.as_deref(), Some("12 AWG"));
+    close(shared.candidates[1].drop_v, 16.0 * 0.200, 1e-9);
+}
