@@ -10,6 +10,7 @@ cd "$(dirname "$0")/.."
 
 want="${1:-build}"
 TRUNK_VERSION="0.22.1"
+CARGO_FUZZ_VERSION="0.13.2"
 say() { printf '\033[1m[setup]\033[0m %s\n' "$*"; }
 
 as_root() {
@@ -61,6 +62,13 @@ if [ "$want" = "test" ]; then
   command -v python3 >/dev/null || apt_ensure python3 python3-venv
   say "OpenDSS cross-check environment (tests/opendss/.venv)"
   tests/opendss/run.sh --setup-only
+  # cargo-fuzz for the short fuzz run, when the nightly toolchain is on the machine.
+  if rustup toolchain list | grep -q '^nightly'; then
+    if [ "$(cargo fuzz --version 2>/dev/null | awk '{print $2}')" != "${CARGO_FUZZ_VERSION}" ]; then
+      say "installing cargo-fuzz ${CARGO_FUZZ_VERSION}"
+      cargo install --locked cargo-fuzz --version "${CARGO_FUZZ_VERSION}"
+    fi
+  fi
 fi
 
 say "fetching crates"

@@ -16,6 +16,12 @@ step "Rust tests (engine, command line, app logic)"
 cargo test --workspace --locked
 step "OpenDSS cross-check (dss-python, in process)"
 tests/opendss/run.sh
+step "fuzzing, short run (cargo-fuzz on nightly)"
+if rustup toolchain list | grep -q '^nightly' && command -v cargo-fuzz >/dev/null; then
+  scripts/fuzz.sh short
+else
+  echo "skipped: the nightly toolchain is not on this machine"
+fi
 step "release build"
 trunk build --release --offline
 step "size"

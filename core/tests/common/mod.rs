@@ -65,6 +65,8 @@ pub const NULLABLE: &[&str] = &[
     "volts",
     "neutral_harmonic_v",
     "ampacity_a",
+    // The sweep's last point is the open neutral (see `whatif::Sweep`).
+    "neutral_ohms",
 ];
 
 /// Walks a serialized report (as a `serde_json::Value`, not its text) and fails on any number

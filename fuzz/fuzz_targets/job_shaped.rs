@@ -1,0 +1,42 @@
+//! Valid-shaped jobs with extreme numbers through every entry point: solve, what-if, sweep and
+//! motor start. The same job gives the same verdict through solve and through the what-if's
+//! matching state; every answer holds only finite numbers or documented nulls.
+#![no_main]
+use arbitrary::Unstructured;
+use libfuzzer_sys::fuzz_target;
+use tapline_core::validate::NeutralState;
+
+fuzz_target!(|data: &[u8]| {
+    let mut u = Unstructured::new(data);
+    let Ok(value) = tapline_fuzz::job(&mut u) else {
+        return;
+    };
+    let Ok((_, job)) = tapline_core::load_job(&value.to_string()) else {
+        return;
+    };
+    let solved = tapline_core::report::analyze(&job);
+    if let Ok(r) = &solved {
+        tapline_fuzz::assert_documented(&serde_json::to_value(r).unwrap(), "");
+    }
+    if let Ok(w) = tapline_core::whatif::what_if(&job) {
+        tapline_fuzz::assert_documented(&serde_json::to_value(&w).unwrap(), "");
+        if let (Ok(r), NeutralState::Intact) = (&solved, job.neutral()) {
+            assert_eq!(
+                r.worst_outcome, w.intact.worst_outcome,
+                "solve and what-if disagree"
+            );
+        }
+    }
+    if let Ok(s) = tapline_core::whatif::sweep(&job, &tapline_core::whatif::sweep_points(5)) {
+        tapline_fuzz::assert_documented(&serde_json::to_value(&s).unwrap(), "");
+    }
+    if let Some(motor) = job
+        .loads()
+        .iter()
+        .find(|l| l.model() == tapline_core::loads::Model::Motor)
+    {
+        if let Ok(s) = tapline_core::tools::start::start(&job, motor.name(), 4.0) {
+            tapline_fuzz::assert_documented(&serde_json::to_value(&s).unwrap(), "");
+        }
+    }
+});
