@@ -23,6 +23,17 @@ fn data(name: &str) -> String {
     format!("{}/../core/tests/data/{name}", env!("CARGO_MANIFEST_DIR"))
 }
 
+/// Asserts a zero exit, printing standard error otherwise.
+#[track_caller]
+fn assert_ok(out: &Output) {
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
+
 fn stdout_json(out: &Output) -> serde_json::Value {
     serde_json::from_slice(&out.stdout).unwrap_or_else(|e| {
         panic!(
@@ -35,12 +46,7 @@ fn stdout_json(out: &Output) -> serde_json::Value {
 #[test]
 fn solve_prints_the_report_fields_the_format_promises() {
     let out = tapline(&["solve", &data("alder-court.json")], None);
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    assert_ok(&out);
     let r = stdout_json(&out);
     for leg in ["L1", "L2"] {
         assert!(r["legs"][leg]["current_a"].as_f64().unwrap() > 0.0);
@@ -264,12 +270,7 @@ fn whatif_library_and_demo() {
 #[test]
 fn diagnose_prints_resistances_and_a_verdict() {
     let out = tapline(&["diagnose", &data("readings-loose.json")], None);
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    assert_ok(&out);
     let d = stdout_json(&out);
     assert!(d["neutral_ohms"].as_f64().unwrap() > 0.1);
     assert!(d["hot_ohms"].as_f64().unwrap() > 0.0);
@@ -290,12 +291,7 @@ fn diagnose_prints_resistances_and_a_verdict() {
 #[test]
 fn balance_prints_before_after_and_moves() {
     let out = tapline(&["balance", &data("panel.json")], None);
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    assert_ok(&out);
     let b = stdout_json(&out);
     let before = b["before"]["neutral_current_a"].as_f64().unwrap();
     let after = b["after"]["neutral_current_a"].as_f64().unwrap();
@@ -414,12 +410,7 @@ fn start_reports_the_dip_and_names_a_bad_load() {
         &["start", "--load", "Freezer", &data("alder-court.json")],
         None,
     );
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    assert_ok(&out);
     let r = stdout_json(&out);
     assert!(r["locked_rotor_a"].as_f64().unwrap() > 0.0);
     assert!(r["appliances"]
@@ -453,12 +444,7 @@ fn balance_can_count_only_what_runs() {
 fn size_prints_the_table_and_names_bad_fields() {
     let good = r#"{"version":1,"system":{"kind":"split-phase"},"run":{"connect":"L1-N","amps":16,"length_ft":100}}"#;
     let out = tapline(&["size", "-"], Some(good));
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    assert_ok(&out);
     assert_eq!(stdout_json(&out)["smallest"], "8 AWG");
     let bad = r#"{"version":1,"system":{"kind":"split-phase"},"run":{"connect":"L1-N","amp":16,"length_ft":100}}"#;
     let out = tapline(&["size", "-"], Some(bad));

@@ -48,6 +48,36 @@ use std::collections::BTreeMap;
 /// The report format version.
 pub const REPORT_VERSION: u32 = 1;
 
+/// Every key of the engine's answers (report, what-if, sweep, tools) that may be `null`, each
+/// meaning "not applicable" as documented beside it; any other `null` would be a figure gone
+/// wrong. The tests and the fuzzing oracle walk answers against this list.
+pub const NOT_APPLICABLE_KEYS: &[&str] = &[
+    "volts_to_neutral",
+    "voltage_drop_v",
+    "voltage_drop_pct",
+    "band",
+    "ansi_range",
+    "panel_neutral_shift_v",
+    "voltage_v",
+    "percent_of_rated",
+    "volts",
+    "neutral_harmonic_v",
+    "ampacity_a",
+    // The sweep's last point is the open neutral (see `whatif::Sweep`).
+    "neutral_ohms",
+    // A motor start: voltages where a bar floats.
+    "before_v",
+    "during_v",
+    "dip_v",
+    "dip_pct",
+    "motor_v",
+    "motor_pct",
+    "starting_torque_pct",
+    // A diagnosis fits only the places it has readings for.
+    "at_panel",
+    "at_meter",
+];
+
 /// Above this voltage between the panel's neutral bar (and so every bonded case, pipe and
 /// appliance frame) and the earth, touching them can shock: IEC 60364-4-41 takes 50 V AC as the
 /// conventional touch-voltage limit for normal conditions (from memory).

@@ -3,16 +3,11 @@
 //! puts a shared neutral's hots on one leg, and always finishes (the fuzzer's time limit per
 //! input catches a search that does not).
 #![no_main]
-use arbitrary::Unstructured;
 use libfuzzer_sys::fuzz_target;
 use tapline_core::tools::balance::{balance, Layout};
 
 fuzz_target!(|data: &[u8]| {
-    let mut u = Unstructured::new(data);
-    let Ok(value) = tapline_fuzz::job(&mut u) else {
-        return;
-    };
-    let Ok((_, job)) = tapline_core::load_job(&value.to_string()) else {
+    let Some((value, job)) = tapline_fuzz::valid_job(data) else {
         return;
     };
     let b = balance(&job, Layout::Standard);

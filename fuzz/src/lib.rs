@@ -159,37 +159,22 @@ pub fn readings(u: &mut Unstructured) -> arbitrary::Result<Value> {
     Ok(json!({"version":1,"system":{"kind":"split-phase"},"readings":list}))
 }
 
-/// Keys documented as "not applicable" when null (see `core/src/report.rs` and the tools).
-const NULLABLE: &[&str] = &[
-    "volts_to_neutral",
-    "voltage_drop_v",
-    "voltage_drop_pct",
-    "band",
-    "ansi_range",
-    "panel_neutral_shift_v",
-    "voltage_v",
-    "percent_of_rated",
-    "volts",
-    "neutral_harmonic_v",
-    "ampacity_a",
-    "before_v",
-    "during_v",
-    "dip_v",
-    "dip_pct",
-    "motor_v",
-    "motor_pct",
-    "starting_torque_pct",
-    "at_panel",
-    "at_meter",
-    // The sweep's last point is the open neutral (see `whatif::Sweep`).
-    "neutral_ohms",
-];
+/// A valid-shaped job drawn from `data`, as JSON and validated, when it validates.
+pub fn valid_job(data: &[u8]) -> Option<(Value, tapline_core::validate::Job)> {
+    let mut u = Unstructured::new(data);
+    let value = job(&mut u).ok()?;
+    let (_, job) = tapline_core::load_job(&value.to_string()).ok()?;
+    Some((value, job))
+}
 
 /// The oracle: every number of a serialized answer is finite (walked through
 /// `serde_json::Value`, not its text) and every `null` is a documented "not applicable".
 pub fn assert_documented(value: &Value, key: &str) {
     match value {
-        Value::Null => assert!(NULLABLE.contains(&key), "`{key}` is null"),
+        Value::Null => assert!(
+            tapline_core::report::NOT_APPLICABLE_KEYS.contains(&key),
+            "`{key}` is null"
+        ),
         Value::Number(n) => assert!(n.as_f64().is_some_and(f64::is_finite), "`{key}` is {n}"),
         Value::Array(items) => items.iter().for_each(|v| assert_documented(v, key)),
         Value::Object(map) => map.iter().for_each(|(k, v)| assert_documented(v, k)),

@@ -51,24 +51,6 @@ pub fn watts_for_ohms(rated_v: f64, ohms: f64) -> f64 {
     rated_v * rated_v / ohms
 }
 
-/// Keys of the report that may be `null`, each documented as "not applicable" in
-/// `core/src/report.rs` (a floating neutral bar, an IEC service, a part the job does not have).
-pub const NULLABLE: &[&str] = &[
-    "volts_to_neutral",
-    "voltage_drop_v",
-    "voltage_drop_pct",
-    "band",
-    "ansi_range",
-    "panel_neutral_shift_v",
-    "voltage_v",
-    "percent_of_rated",
-    "volts",
-    "neutral_harmonic_v",
-    "ampacity_a",
-    // The sweep's last point is the open neutral (see `whatif::Sweep`).
-    "neutral_ohms",
-];
-
 /// Walks a serialized report (as a `serde_json::Value`, not its text) and fails on any number
 /// that is not finite and on any `null` whose key is not documented as "not applicable": serde
 /// writes NaN and infinity as `null`, so an undocumented `null` is a figure that went wrong.
@@ -77,7 +59,7 @@ pub fn assert_numbers_documented(value: &serde_json::Value, key: &str) {
     use serde_json::Value;
     match value {
         Value::Null => assert!(
-            NULLABLE.contains(&key),
+            tapline_core::report::NOT_APPLICABLE_KEYS.contains(&key),
             "`{key}` is null but not documented as not applicable"
         ),
         Value::Number(n) => assert!(
