@@ -154,7 +154,8 @@ impl Verdict {
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Fit {
     pub neutral_ohms: f64,
-    /// Two standard uncertainties (about 95 %), ohms.
+    /// Three standard uncertainties of the meters' part (about 99.7 %) combined with the model's
+    /// bias, ohms.
     pub neutral_ohms_uncertainty: f64,
     pub hot_ohms: f64,
     pub hot_ohms_uncertainty: f64,
@@ -456,14 +457,17 @@ impl Row {
 ///
 /// Kirchhoff's voltage law on the three-wire circuit (common practice); the meters read
 /// magnitudes.
-fn rows(readings: &[&Reading], k: f64) -> Vec<Row> {
+///
+/// A clamp measures each current's angle against its own leg's voltage at the panel, which the
+/// drops turn away from the source's by δ; `angles` holds each reading's (δ₁, δ₂), radians.
+fn rows(readings: &[&Reading], k: f64, angles: &[(f64, f64)]) -> Vec<Row> {
     let zk = Complex64::new(1.0, k);
     let one = Complex64::new(1.0, 0.0);
     let zero = Complex64::new(0.0, 0.0);
     let mut out = Vec::new();
-    for r in readings {
-        let i1 = Complex64::from_polar(r.i1, -r.pf1.acos());
-        let i2 = Complex64::from_polar(r.i2, -r.pf2.acos());
+    for (r, (d1, d2)) in readings.iter().zip(angles) {
+        let i1 = Complex64::from_polar(r.i1, d1 - r.pf1.acos());
+        let i2 = Complex64::from_polar(r.i2, d2 - r.pf2.acos());
         let n = i1 - i2;
         out.push(Row {
             coef: [one, zero, -zk * i1, -zk * n],
@@ -538,27 +542,69 @@ fn least_squares(rows: &[Row]) -> Option<([f64; 4], [f64; 4], f64)> {
     Some((p, inv, rss))
 }
 
+/// A fit's rows, unknowns (E₁, E₂, R_h, R_n), inverse normal diagonal and residual sum of squares.
+type Referred = (Vec<Row>, [f64; 4], [f64; 4], f64);
+
+/// The least-squares fit with each current referred to its leg's own voltage: the angles δ of
+/// the model's leg voltages are found by fixed-point iteration around the fit (they are a few
+/// degrees at most, and settle in a handful of rounds).
+fn fit_referred(readings: &[&Reading], k: f64) -> Option<Referred> {
+    let mut angles = vec![(0.0, 0.0); readings.len()];
+    let mut last = None;
+    for _ in 0..30 {
+        let rs = rows(readings, k, &angles);
+        let (p, inv, rss) = least_squares(&rs)?;
+        // Each reading's rows start with V₁ and V₂ (then V₁₂ if read).
+        let mut at = 0;
+        let mut moved: f64 = 0.0;
+        for (r, a) in readings.iter().zip(angles.iter_mut()) {
+            let new = (rs[at].phasor(&p).arg(), rs[at + 1].phasor(&p).arg());
+            moved = moved.max((new.0 - a.0).abs()).max((new.1 - a.1).abs());
+            *a = new;
+            at += if r.v12.is_some() { 3 } else { 2 };
+        }
+        last = Some((rs, p, inv, rss));
+        if moved < 1e-12 {
+            break;
+        }
+    }
+    last
+}
+
+/// The uncertainty is this many standard uncertainties of the meters' part (about 99.7 % for a
+/// normal error): the readings are rounded, not random, and a verdict beside energized equipment
+/// should be wrong very rarely, so the interval is wide rather than narrow.
+const COVERAGE: f64 = 3.0;
+
+/// The resolution of a power-quality clamp's power-factor display (common practice, no source).
+const PF_RESOLUTION: f64 = 0.01;
+
 /// Fits E₁, E₂, R_h and R_n to one place's readings.
 fn fit(readings: &[&Reading], vres: f64, ares: f64) -> Result<Fit, DiagnoseError> {
     let degenerate = || {
         DiagnoseError::Degenerate("the readings do not separate the hot and neutral resistances: change the load on one leg by a few amperes between readings".to_string())
     };
-    let main = rows(readings, 0.0);
-    let (x, inv_diag, rss) = least_squares(&main).ok_or_else(degenerate)?;
+    let (main, x, inv_diag, rss) = fit_referred(readings, 0.0).ok_or_else(degenerate)?;
     // The model's bias: the same fit with reactive conductors. The difference is what neglecting
     // the conductors' reactance can do to the answer (zero when every current is in phase).
-    let (xb, _, _) = least_squares(&rows(readings, BIAS_X_OVER_R)).ok_or_else(degenerate)?;
+    let (_, xb, _, _) = fit_referred(readings, BIAS_X_OVER_R).ok_or_else(degenerate)?;
     let dof = main.len().saturating_sub(4);
     // Quantisation noise of a reading: resolution/√12 (common practice). Current errors enter
     // through the resistances they multiply.
-    let sigma_meter_sq = (vres * vres + (x[2] * x[2] + x[3] * x[3]) * ares * ares) / 12.0;
+    // A clamp that shows power factor to two places (0.01) moves the in-phase part of a current
+    // by up to half of that of the current.
+    let pf_shown = readings.iter().any(|r| r.pf1 < 1.0 || r.pf2 < 1.0);
+    let i_max = readings.iter().map(|r| r.i1.max(r.i2)).fold(0.0, f64::max);
+    let pf_amps = if pf_shown { PF_RESOLUTION * i_max } else { 0.0 };
+    let sigma_meter_sq =
+        (vres * vres + (x[2] * x[2] + x[3] * x[3]) * (ares * ares + pf_amps * pf_amps)) / 12.0;
     let sigma_sq = if dof > 0 {
         sigma_meter_sq.max(rss / dof as f64)
     } else {
         sigma_meter_sq
     };
-    let meter_n = 2.0 * (sigma_sq * inv_diag[3].max(0.0)).sqrt();
-    let meter_h = 2.0 * (sigma_sq * inv_diag[2].max(0.0)).sqrt();
+    let meter_n = COVERAGE * (sigma_sq * inv_diag[3].max(0.0)).sqrt();
+    let meter_h = COVERAGE * (sigma_sq * inv_diag[2].max(0.0)).sqrt();
     let bias_n = (xb[3] - x[3]).abs();
     let bias_h = (xb[2] - x[2]).abs();
     Ok(Fit {
