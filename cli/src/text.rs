@@ -9,6 +9,14 @@ use tapline_core::tools::size::Sizing;
 use tapline_core::tools::start::Start;
 use tapline_core::whatif::WhatIf;
 
+/// A summary followed by its notes and the cautions.
+fn with_notes(mut s: String, notes: &[String]) -> String {
+    for n in notes {
+        s.push_str(&format!("Note: {n}\n"));
+    }
+    with_cautions(s)
+}
+
 /// A summary followed by the cautions.
 fn with_cautions(mut s: String) -> String {
     s.push('\n');
@@ -76,10 +84,7 @@ pub fn report(r: &Report) -> String {
     for m in &r.multiwire {
         s.push_str(&format!("Shared neutral {}: {}\n", m.id, m.message));
     }
-    for n in &r.notes {
-        s.push_str(&format!("Note: {n}\n"));
-    }
-    with_cautions(s)
+    with_notes(s, &r.notes)
 }
 
 /// The three neutral states side by side.
@@ -138,11 +143,8 @@ pub fn balance(b: &Balance) -> String {
     for w in &b.swaps {
         s.push_str(&format!("  {}\n", w.text));
     }
-    for n in &b.notes {
-        s.push_str(&format!("Note: {n}\n"));
-    }
     s.push_str("Move breakers only with the main off and the panel tested dead.\n");
-    with_cautions(s)
+    with_notes(s, &b.notes)
 }
 
 /// A motor start.
@@ -177,10 +179,7 @@ pub fn start(st: &Start) -> String {
             }
         ));
     }
-    for n in &st.notes {
-        s.push_str(&format!("Note: {n}\n"));
-    }
-    with_cautions(s)
+    with_notes(s, &st.notes)
 }
 
 /// A sizing table.
@@ -209,8 +208,5 @@ pub fn sizing(t: &Sizing) -> String {
         "Smallest that meets both: {}\n",
         t.smallest.as_deref().unwrap_or("none")
     ));
-    for n in &t.notes {
-        s.push_str(&format!("Note: {n}\n"));
-    }
-    with_cautions(s)
+    with_notes(s, &t.notes)
 }

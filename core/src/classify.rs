@@ -145,7 +145,7 @@ impl Band {
     }
 }
 
-/// Kept for the app's readers of `ansi_range`: the ANSI C84.1 band type.
+/// The band type under its earlier name, for the ANSI C84.1 table tests.
 pub type AnsiRange = Band;
 
 /// A service (panel) voltage's band under the system's standard, against `nominal`.

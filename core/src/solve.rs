@@ -455,6 +455,16 @@ fn low_state(model: Model) -> State {
     }
 }
 
+/// True when a constant-power load's terminal voltage `vt` is below the limit at which it stalls
+/// or drops out (a voltage that is not defined, a floating bar, counts as below).
+fn below_limit(load: &crate::loads::Load, vt: Option<f64>) -> bool {
+    match (vt, load.low_limit_v()) {
+        (Some(v), Some(limit)) => v < limit * (1.0 - 1e-9),
+        (None, Some(_)) => true,
+        _ => false,
+    }
+}
+
 /// The running load whose demand the supply cannot meet, largest first: among the running
 /// constant-power loads below their low limit at `vt` (all of them when none is), the one of
 /// largest rated apparent power, ties to the lower voltage. The list's order never decides.
@@ -469,14 +479,7 @@ fn gives_way(net: &Network, states: &[State], vt: &[Option<f64>], all: bool) -> 
                     && states[*k] == State::Running
                     && p.load.low_limit_v().is_some()
             })
-            .filter(move |(k, p)| {
-                !only_below
-                    || match (vt[*k], p.load.low_limit_v()) {
-                        (Some(v), Some(limit)) => v < limit * (1.0 - 1e-9),
-                        (None, _) => true,
-                        _ => false,
-                    }
-            })
+            .filter(move |(k, p)| !only_below || below_limit(&p.load, vt[*k]))
             .max_by(|(i, a), (j, b)| {
                 let sa = a.load.rated_complex_power().norm();
                 let sb = b.load.rated_complex_power().norm();
@@ -544,7 +547,7 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
             .iter()
             .enumerate()
             .map(|(k, p)| {
-                let (a, b) = ends(net, p);
+                let (a, b) = ws.ends[k];
                 pair(&v, a, b).map(|vp| at_terminals(vp, p.branch, y[k]).norm())
             })
             .collect();
@@ -556,10 +559,9 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
                 p.load.is_on()
                     && !held(*k)
                     && states[*k] == State::Running
-                    && match (vt[*k], p.load.low_limit_v()) {
-                        (Some(v), Some(limit)) => v < limit * (1.0 - 1e-9),
-                        _ => false,
-                    }
+                    // A floating load is not below its limit: it simply gets no voltage.
+                    && vt[*k].is_some()
+                    && below_limit(&p.load, vt[*k])
             })
             .map(|(k, _)| k)
             .collect();
@@ -758,7 +760,7 @@ fn finish(
     let mut into_neutral = ZERO;
     let mut shared_current = vec![ZERO; net.shared().len()];
     for (k, p) in net.loads().iter().enumerate() {
-        let (a, b) = ends(net, p);
+        let (a, b) = ws.ends[k];
         let panel_v = pair(&v, a, b);
         let (terminal_v, current) = match (p.load.is_on(), panel_v) {
             (true, Some(vp)) => {
@@ -864,7 +866,7 @@ fn solve_harmonics(
             if !p.load.is_on() {
                 continue;
             }
-            let (a, b) = ends(net, p);
+            let (a, b) = ws.ends[k];
             let zb = at_harmonic(p.branch, h);
             if is_source[k] {
                 let frac: f64 = p
@@ -904,7 +906,7 @@ fn solve_harmonics(
             if !p.load.is_on() {
                 continue;
             }
-            let (a, b) = ends(net, p);
+            let (a, b) = ws.ends[k];
             let through = pair(v, a, b).map(|vp| vp * y_h[k]).unwrap_or(ZERO);
             let i = through + if is_source[k] { source_of[k] } else { ZERO };
             harmonic_sq[k] += i.norm_sqr();

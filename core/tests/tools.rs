@@ -212,6 +212,7 @@ fn a_shared_neutral_on_one_leg_is_moved_apart() {
     let b = balance(&j, Layout::Standard);
     assert!(shared_hots_apart(&j, &b.moves), "{:?}", b.moves);
     assert!(b.notes.iter().any(|n| n.contains("210.4(B)")));
+    assert!(b.separates_shared_neutral);
     let step = b
         .swaps
         .iter()

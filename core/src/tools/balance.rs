@@ -157,6 +157,9 @@ pub struct Balance {
     pub layout: &'static str,
     /// `rated` (every appliance at its rating) or `running` (only what runs now).
     pub basis: &'static str,
+    /// True when a shared-neutral circuit had its hots on one leg and is moved apart: that
+    /// correction (NEC 210.4(B)) comes first, even if the service neutral then carries more.
+    pub separates_shared_neutral: bool,
     pub within_a: f64,
     pub notes: Vec<String>,
 }
@@ -618,6 +621,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
     let mut offset = vec![Complex64::new(0.0, 0.0); n_orders];
     let mut items: Vec<Item> = Vec::new();
     let mut done = vec![false; cs.len()];
+    let mut separates = false;
     for (k, c) in cs.iter().enumerate() {
         if done[k] {
             continue;
@@ -649,6 +653,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
                 continue;
             }
             if !apart {
+                separates = true;
                 notes.push(format!("Shared-neutral circuit {id} has two hots on one leg, so its neutral carries their sum: it is moved so its hots are on different legs (NEC 210.4(B))."));
             }
             let choices: Vec<Choice> = injective(hots.len(), legs.len())
@@ -892,6 +897,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
             Basis::Rated => "rated",
             Basis::RunningNow => "running",
         },
+        separates_shared_neutral: separates,
         within_a: TOLERANCE_A.max(least_gap + TOLERANCE_A),
         notes,
     }

@@ -32,7 +32,7 @@ use crate::conductors::drop::approximate_drop;
 use crate::conductors::{Conductor, Conduit, Material, Size, FEET_PER_METRE};
 use crate::fields::{Checker, Problem, Rule, Unknown};
 use crate::job::{Raw, SystemFile};
-use crate::system::{System, SystemKind};
+use crate::system::SystemKind;
 use crate::validate::validate_system;
 use serde::{Deserialize, Serialize};
 
@@ -337,53 +337,26 @@ pub fn validate_run(file: &RunFile) -> Result<Run, Vec<Problem>> {
             None
         }
     };
-    if !c.problems.is_empty() {
-        return Err(c.problems);
-    }
-    match (
-        kind,
-        path,
-        amps,
-        pf,
-        length_ft,
-        material,
-        conduit,
-        temperature_c,
-        column_c,
-        target_pct,
-        circuit_v,
-        system,
-        metric,
-    ) {
-        (
-            Some(kind),
-            Some(path),
-            Some(amps),
-            Some(power_factor),
-            Some(length_ft),
-            Some(material),
-            Some(conduit),
-            Some(temperature_c),
-            Some(column_c),
-            Some(target_pct),
-            Some(circuit_v),
-            Some(system),
-            Some(metric),
-        ) => Ok(Run {
-            kind,
-            path,
-            amps,
-            power_factor,
-            length_ft,
-            material,
-            conduit,
-            temperature_c,
-            column_c,
-            target_pct,
-            circuit_v,
-            frequency_hz: System::frequency_hz(&system),
-            metric,
-        }),
+    // Every missing part above has named its problem, so with none there is a whole run.
+    let run = (|| {
+        Some(Run {
+            kind: kind?,
+            path: path?,
+            amps: amps?,
+            power_factor: pf?,
+            length_ft: length_ft?,
+            material: material?,
+            conduit: conduit?,
+            temperature_c: temperature_c?,
+            column_c: column_c?,
+            target_pct: target_pct?,
+            circuit_v: circuit_v?,
+            frequency_hz: system?.frequency_hz(),
+            metric: metric?,
+        })
+    })();
+    match run {
+        Some(run) if c.problems.is_empty() => Ok(run),
         _ => Err(c.problems),
     }
 }
