@@ -125,10 +125,35 @@ pub struct JobFile {
     /// Shared-neutral (multiwire) branch circuits that loads may name.
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub multiwire: Raw<Vec<Raw<MultiwireFile>>>,
+    /// Meter readings taken on site, one dated set per visit (the first test, the re-test after
+    /// a repair). They are kept as typed: the job's solve does not depend on them, and the
+    /// diagnosis names any reading it cannot use.
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub readings: Raw<Vec<Raw<ReadingSetFile>>>,
     /// Keys this format does not define, kept so the file round-trips; validation refuses them.
     #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
     pub unknown: Unknown,
 }
+
+/// One visit's meter readings, dated.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct ReadingSetFile {
+    /// When the set was taken, as the person or the phone's clock wrote it (`2026-12-02 09:40`).
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub taken: Raw<String>,
+    /// What the set was for ("first test", "after tightening the neutral lug").
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub note: Raw<String>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub meter: Raw<MeterFile>,
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub readings: Raw<Vec<Raw<ReadingFile>>>,
+    /// Keys this format does not define; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
+}
+
 
 /// A shared-neutral (multiwire) branch circuit: its id and its neutral conductor.
 #[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
@@ -306,6 +331,37 @@ pub struct LoadFile {
 }
 
 /// Why a text could not be read as a job at all (before any field is looked at).
+/// The meters' resolution.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct MeterFile {
+    pub volts_resolution: Raw<f64>,
+    pub amps_resolution: Raw<f64>,
+    /// Keys this format does not define; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
+}
+
+/// One set of readings.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct ReadingFile {
+    pub label: Raw<String>,
+    /// `panel` (default) or `meter`: where the voltages were read.
+    pub at: Raw<String>,
+    pub l1_n_v: Raw<f64>,
+    pub l2_n_v: Raw<f64>,
+    pub l1_l2_v: Raw<f64>,
+    pub l1_a: Raw<f64>,
+    pub l2_a: Raw<f64>,
+    /// Each leg current's power factor (lagging), as a power-quality clamp shows; 1 if absent.
+    pub l1_pf: Raw<f64>,
+    pub l2_pf: Raw<f64>,
+    /// Keys this format does not define; validation refuses them.
+    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+    pub unknown: Unknown,
+}
+
 #[derive(Clone, Debug, PartialEq)]
 pub struct ParseError {
     pub message: String,

@@ -53,6 +53,15 @@ pub const JOB_KEYS: &[&str] = &[
     "neutral",
     "loads",
     "multiwire",
+    "readings",
+];
+/// See [`JOB_KEYS`]: one dated set of readings in a job.
+pub const READING_SET_KEYS: &[&str] = &["taken", "note", "meter", "readings"];
+/// See [`JOB_KEYS`]: the meters' resolution.
+pub const METER_KEYS: &[&str] = &["volts_resolution", "amps_resolution"];
+/// See [`JOB_KEYS`]: one reading, in a job's set or a readings file.
+pub const READING_KEYS: &[&str] = &[
+    "label", "at", "l1_n_v", "l2_n_v", "l1_l2_v", "l1_a", "l2_a", "l1_pf", "l2_pf",
 ];
 /// See [`JOB_KEYS`].
 pub const SYSTEM_KEYS: &[&str] = &["kind", "volts_to_neutral", "frequency_hz", "phases"];
@@ -159,6 +168,7 @@ pub fn validate(file: &JobFile) -> Result<Job, Vec<Problem>> {
     let multiwire = system
         .map(|s| validate_multiwire(&mut c, file, loads.as_deref().unwrap_or(&[]), &s))
         .unwrap_or_default();
+    check_reading_sets(&mut c, file);
 
     match (system, service, loads) {
         (Some(system), Some(service), Some(loads)) if c.problems.is_empty() => Ok(Job {
@@ -172,6 +182,44 @@ pub fn validate(file: &JobFile) -> Result<Job, Vec<Problem>> {
             multiwire,
         }),
         _ => Err(c.problems),
+    }
+}
+
+/// Checks the shape of the job's reading sets: a typo in a key is refused like anywhere else, but
+/// the readings' numbers are left to the diagnosis, so a half-typed reading never stops the job
+/// from solving or being saved.
+fn check_reading_sets(c: &mut Checker, file: &JobFile) {
+    let sets = match &file.readings {
+        Raw::Absent => return,
+        Raw::Invalid(_) => {
+            c.fail("readings", "must be a list of dated sets of readings");
+            return;
+        }
+        Raw::Given(l) => l,
+    };
+    for (i, raw) in sets.iter().enumerate() {
+        let at = format!("readings[{i}]");
+        let Some(set) = c.object(raw, &at) else {
+            continue;
+        };
+        c.unknown_keys(&set.unknown, &at, READING_SET_KEYS);
+        let _ = c.text(&set.taken, &format!("{at}.taken"));
+        let _ = c.text(&set.note, &format!("{at}.note"));
+        if let Some(m) = c.object(&set.meter, &format!("{at}.meter")) {
+            c.unknown_keys(&m.unknown, &format!("{at}.meter"), METER_KEYS);
+        }
+        match &set.readings {
+            Raw::Absent => {}
+            Raw::Invalid(_) => c.fail(&format!("{at}.readings"), "must be a list of readings"),
+            Raw::Given(list) => {
+                for (k, r) in list.iter().enumerate() {
+                    let path = format!("{at}.readings[{k}]");
+                    if let Some(r) = c.object(r, &path) {
+                        c.unknown_keys(&r.unknown, &path, READING_KEYS);
+                    }
+                }
+            }
+        }
     }
 }
 

@@ -9,10 +9,10 @@ use tapline_core::network::Network;
 use tapline_core::solve::solve;
 use tapline_core::system::Leg;
 use tapline_core::tools::balance::{
-    balance, balance_with, brute_force, brute_force_least, Basis, Layout,
+    balance, balance_with, brute_force, brute_force_least, schedule, Basis, Layout,
 };
 use tapline_core::tools::diagnose::{
-    diagnose, parse_readings, verdict_for, DiagnoseError, Verdict,
+    diagnose, history, parse_readings, verdict_for, DiagnoseError, Verdict, SPLIT_PHASE_ONLY,
 };
 
 fn job(v: &Value) -> tapline_core::validate::Job {
@@ -272,7 +272,14 @@ fn balance_prefers_the_fewest_moves() {
     assert_eq!(b.moves.len(), 1);
     assert_eq!(b.moves[0].circuit, "1");
     assert_eq!((b.moves[0].from, b.moves[0].to), ("L1", "L2"));
-    assert!(b.swaps[0].text.contains("free position on L2"));
+    // Positions 1, 3 and 5 (the 240 V breaker at 3 takes 3 and 5) and 9 are in use; on the usual
+    // bus L2 has positions 3, 4, 7, 8, …, so the lowest free one on L2 is 4.
+    assert_eq!(b.moves[0].to_slot, Some(4));
+    assert!(
+        b.swaps[0].text.contains("to position 4 on L2"),
+        "{}",
+        b.swaps[0].text
+    );
 }
 
 /// Source: common practice, no source: on the usual North American bus the positions alternate
@@ -362,7 +369,7 @@ fn bad_readings_name_their_field() {
         ),
         (
             json!({"system":{"kind":"wye"},"readings":[]}),
-            "system.kind: diagnosis from readings supports split-phase services only",
+            "system.kind: diagnosis from readings supports split-phase (120/240 V) services only",
         ),
         (
             json!({"version":1,"system":{"kind":"split-phase"},"readings":[
@@ -619,4 +626,113 @@ proptest! {
             prop_assert!(w[1].drop_v <= w[0].drop_v + 1e-12, "{} {} then {} {}", w[0].size, w[0].drop_v, w[1].size, w[1].drop_v);
         }
     }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 64, .. ProptestConfig::default() })]
+
+    /// Applying the moves leaves a panel a person can build: every breaker that moves goes to a
+    /// position on its new leg in the layout, no two breakers end in one position, and a swap's
+    /// breakers trade places. Panels are generated with each breaker in a position of its own leg.
+    #[test]
+    fn moves_go_to_free_positions_on_their_new_leg(
+        circuits in proptest::collection::vec((50.0..2400.0f64, 0usize..3, any::<bool>()), 1..14),
+        three in any::<bool>(),
+        flipped in any::<bool>(),
+    ) {
+        let legs_list = if three { vec![Leg::L1, Leg::L2, Leg::L3] } else { vec![Leg::L1, Leg::L2] };
+        let layout = if flipped { Layout::Flipped } else { Layout::Standard };
+        let mut used = std::collections::BTreeSet::new();
+        let loads: Vec<Value> = circuits.iter().enumerate().map(|(i, (w, leg, fixed))| {
+            let leg = legs_list[leg % legs_list.len()];
+            let slot = (1..).find(|&p| !used.contains(&p) && layout.leg_of_slot(p, &legs_list) == leg).unwrap();
+            used.insert(slot);
+            json!({"name":format!("c{i}"),"connect":format!("{}-N", leg.name()),"model":"resistive",
+                "watts":w,"movable":!fixed,"circuit":format!("{i}"),"slot":slot})
+        }).collect();
+        let j = job(&json!({"system":if three { json!({"kind":"wye"}) } else { json!({"kind":"split-phase"}) },"loads":loads}));
+        let b = balance(&j, layout);
+        let mut at: std::collections::BTreeMap<u32, String> = Default::default();
+        for row in schedule(&j, layout) {
+            prop_assert!(row.mismatch.is_none(), "{:?}", row.mismatch);
+            let m = b.moves.iter().find(|m| m.circuit == row.circuit);
+            let p = match m {
+                Some(m) => {
+                    let q = m.to_slot.expect("a free or swapped position within 42");
+                    prop_assert_eq!(layout.leg_of_slot(q, &legs_list).name(), m.to);
+                    q
+                }
+                None => row.positions[0],
+            };
+            prop_assert!(at.insert(p, row.circuit.clone()).is_none(), "two breakers at position {}", p);
+        }
+    }
+}
+
+/// Source: common practice, no source: a 240 V breaker takes two positions a row apart (one on
+/// each leg), and the usual bus puts positions 1-2 on L1, 3-4 on L2. The demo panel's schedule in
+/// position order, with no line on the wrong leg for its position.
+#[test]
+fn the_schedule_lists_positions_in_order() {
+    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/panel.json")).unwrap();
+    let j = tapline_core::load_job(&text).unwrap().1;
+    let rows = schedule(&j, Layout::Standard);
+    let positions: Vec<Vec<u32>> = rows.iter().map(|r| r.positions.clone()).collect();
+    assert_eq!(positions, vec![vec![1], vec![2, 4], vec![3], vec![5], vec![9]]);
+    assert_eq!(rows[1].leg, "L1-L2");
+    assert!(rows[1].stays);
+    assert!(!rows[0].stays);
+    close(rows[1].watts, 4500.0, 1e-12);
+    assert!(rows.iter().all(|r| r.mismatch.is_none()));
+    // Flipped, position 1 is on L2, so the kitchen circuit connected to L1 is flagged.
+    let flipped = schedule(&j, Layout::Flipped);
+    assert!(flipped[0].mismatch.as_deref().unwrap().contains("position 1 is on L2"));
+}
+
+/// A job keeps its dated sets of readings; each is diagnosed on the job's service and the re-test
+/// after a repair is compared with the first test. Readings come from the full network (a loose
+/// neutral of 0.626 Ω before the repair, 0.005 Ω after), rounded as the meters show them.
+#[test]
+fn a_retest_after_a_repair_is_compared_with_the_first_test() {
+    let set = |loose: f64, taken: &str| {
+        json!({"taken":taken,"note":"kettle on L1","readings":[
+            network_reading(loose, 0.0, None),
+            network_reading(loose, 0.0, Some(("L1", 1800.0, 1.0))),
+            network_reading(loose, 0.0, Some(("L2", 1800.0, 1.0)))]})
+    };
+    let mut file = json!({"system":{"kind":"split-phase"},"loads":[],
+        "readings":[set(0.626, "2026-11-30 10:15"), set(0.005, "2026-12-02 09:40")]});
+    let parsed = tapline_core::job::parse_job(&file.to_string()).unwrap();
+    let j = tapline_core::validate::validate(&parsed).unwrap();
+    let h = history(&j, &parsed);
+    assert_eq!(h.sets.len(), 2);
+    let first = h.sets[0].diagnosis.as_ref().unwrap();
+    let last = h.sets[1].diagnosis.as_ref().unwrap();
+    assert!(matches!(first.verdict, Verdict::Dangerous | Verdict::Inconclusive));
+    assert!(matches!(last.verdict, Verdict::Healthy | Verdict::Inconclusive));
+    assert!(last.neutral_ohms < first.neutral_ohms);
+    let c = h.comparison.unwrap();
+    assert!(c.contains("2026-11-30 10:15") && c.contains("2026-12-02 09:40") && c.contains("less"), "{c}");
+
+    // A half-typed reading does not stop the job from validating; its set names the field.
+    file["readings"][1]["readings"][0]["l2_n_v"] = json!("12o");
+    let parsed = tapline_core::job::parse_job(&file.to_string()).unwrap();
+    let j = tapline_core::validate::validate(&parsed).unwrap();
+    let h = history(&j, &parsed);
+    assert!(h.sets[0].diagnosis.is_some());
+    assert!(h.comparison.is_none());
+    assert_eq!(h.sets[1].problems[0].path, "readings[1].readings[0].l2_n_v");
+
+    // A typo in a key is refused by the job's own validation.
+    file["readings"][1]["readings"][0]["l1_av"] = json!(3.0);
+    let parsed = tapline_core::job::parse_job(&file.to_string()).unwrap();
+    let problems = tapline_core::validate::validate(&parsed).unwrap_err();
+    assert_eq!(problems[0].path, "readings[1].readings[0].l1_av");
+
+    // On a wye service the sets say what is supported.
+    let wye = json!({"system":{"kind":"wye"},"loads":[],"readings":[set(0.3, "")]});
+    let parsed = tapline_core::job::parse_job(&wye.to_string()).unwrap();
+    let j = tapline_core::validate::validate(&parsed).unwrap();
+    let h = history(&j, &parsed);
+    assert_eq!(h.sets[0].problems[0].message, SPLIT_PHASE_ONLY);
 }

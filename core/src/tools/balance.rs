@@ -130,6 +130,10 @@ pub struct Move {
     /// Its breaker position now.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub slot: Option<u32>,
+    /// The position it goes to: its partner's in a swap, else the lowest free position on its new
+    /// leg in the layout (none when positions are not given or the panel has no free one).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub to_slot: Option<u32>,
     /// The appliances on it.
     pub appliances: Vec<String>,
     /// The shared-neutral circuit it moves with, handle-tied.
@@ -878,6 +882,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
             from: a.map(Leg::name).unwrap_or("-"),
             to: b.map(Leg::name).unwrap_or("-"),
             slot: c.slot,
+            to_slot: None,
             appliances: c
                 .loads
                 .iter()
@@ -886,7 +891,9 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
             multiwire: c.multiwire.clone(),
         })
         .collect();
-    let swaps = pair_swaps(&moves);
+    let mut moves = moves;
+    let mut free = FreePositions::new(job, cs, layout);
+    let swaps = pair_swaps(&mut moves, &mut free);
     Balance {
         before,
         after,
@@ -903,7 +910,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
     }
 }
 
-/// "position 7, Refrigerator" or "circuit 7 (Refrigerator)" when no position is given.
+/// "position 7 (Refrigerator)" or "circuit 7 (Refrigerator)" when no position is given.
 fn where_is(m: &Move) -> String {
     let names = m.appliances.join(", ");
     match m.slot {
@@ -912,31 +919,96 @@ fn where_is(m: &Move) -> String {
     }
 }
 
+/// The breaker positions of a panel not taken by any circuit, for moves to a free position.
+struct FreePositions {
+    taken: std::collections::BTreeSet<u32>,
+    layout: Layout,
+    legs: Vec<Leg>,
+    /// The highest position considered: a 42-space panel, or the highest one in use.
+    last: u32,
+}
+
+impl FreePositions {
+    fn new(job: &Job, cs: &[Circuit], layout: Layout) -> FreePositions {
+        let mut taken = std::collections::BTreeSet::new();
+        for c in cs {
+            if let Some(p) = c.slot {
+                taken.extend(poles(job, c).iter().map(|k| p + 2 * k));
+            }
+        }
+        let last = taken.iter().next_back().copied().unwrap_or(0).max(42);
+        FreePositions {
+            taken,
+            layout,
+            legs: job.system().legs().to_vec(),
+            last,
+        }
+    }
+
+    /// The lowest position p with p, p + 2, … free and on `targets` in turn (a handle-tied
+    /// breaker takes positions one row apart), marked taken; `None` when there is none.
+    fn take(&mut self, targets: &[&'static str]) -> Option<u32> {
+        let n = targets.len() as u32;
+        let p = (1..=self.last.saturating_sub(2 * (n - 1))).find(|&p| {
+            targets.iter().enumerate().all(|(k, t)| {
+                let q = p + 2 * k as u32;
+                !self.taken.contains(&q) && self.layout.leg_of_slot(q, &self.legs).name() == *t
+            })
+        })?;
+        for k in 0..n {
+            self.taken.insert(p + 2 * k);
+        }
+        Some(p)
+    }
+}
+
+/// The positions a circuit's breaker takes, as offsets in rows from its first: one pole for a
+/// 120 V circuit, two for a 240 V one.
+fn poles(job: &Job, c: &Circuit) -> Vec<u32> {
+    let two = c
+        .loads
+        .iter()
+        .any(|&i| matches!(job.loads()[i].connection(), Connection::Across(..)));
+    if two {
+        vec![0, 1]
+    } else {
+        vec![0]
+    }
+}
+
 /// Pairs opposite moves into breaker swaps and keeps each shared-neutral circuit's moves together;
-/// a move left over is said as a move to a free position.
-fn pair_swaps(moves: &[Move]) -> Vec<Swap> {
+/// a move left over goes to a free position on its new leg. Sets each move's `to_slot`.
+fn pair_swaps(moves: &mut [Move], free: &mut FreePositions) -> Vec<Swap> {
     let mut used = vec![false; moves.len()];
     let mut out = Vec::new();
     for i in 0..moves.len() {
         if used[i] {
             continue;
         }
-        if let Some(id) = &moves[i].multiwire {
+        if let Some(id) = moves[i].multiwire.clone() {
             let group: Vec<usize> = (i..moves.len())
                 .filter(|&j| !used[j] && moves[j].multiwire.as_deref() == Some(id.as_str()))
                 .collect();
             for &j in &group {
                 used[j] = true;
             }
+            // The handle-tied breaker goes to positions one row apart, its hots on their new legs.
+            if group.iter().all(|&j| moves[j].slot.is_some()) {
+                let targets: Vec<&'static str> = group.iter().map(|&j| moves[j].to).collect();
+                if let Some(p) = free.take(&targets) {
+                    for (k, &j) in group.iter().enumerate() {
+                        moves[j].to_slot = Some(p + 2 * k as u32);
+                    }
+                }
+            }
             let parts: Vec<String> = group
                 .iter()
                 .map(|&j| {
-                    format!(
-                        "{} from {} to {}",
-                        where_is(&moves[j]),
-                        moves[j].from,
-                        moves[j].to
-                    )
+                    let to = match moves[j].to_slot {
+                        Some(q) => format!("{} at position {q}", moves[j].to),
+                        None => moves[j].to.to_string(),
+                    };
+                    format!("{} from {} to {to}", where_is(&moves[j]), moves[j].from)
                 })
                 .collect();
             out.push(Swap {
@@ -959,6 +1031,8 @@ fn pair_swaps(moves: &[Move]) -> Vec<Swap> {
         match partner {
             Some(j) => {
                 used[j] = true;
+                moves[i].to_slot = moves[j].slot;
+                moves[j].to_slot = moves[i].slot;
                 let (a, b) = (&moves[i], &moves[j]);
                 out.push(Swap {
                     circuits: vec![a.circuit.clone(), b.circuit.clone()],
@@ -973,21 +1047,97 @@ fn pair_swaps(moves: &[Move]) -> Vec<Swap> {
                 });
             }
             None => {
+                if moves[i].slot.is_some() {
+                    moves[i].to_slot = free.take(&[moves[i].to]);
+                }
                 let m = &moves[i];
+                let to = match m.to_slot {
+                    Some(q) => format!("to position {q} on {}", m.to),
+                    None => format!("to a free position on {}", m.to),
+                };
                 out.push(Swap {
                     circuits: vec![m.circuit.clone()],
                     slots: m.slot.into_iter().collect(),
-                    text: format!(
-                        "Move {} from {} to a free position on {}",
-                        where_is(m),
-                        m.from,
-                        m.to
-                    ),
+                    text: format!("Move {} from {} {to}", where_is(m), m.from),
                 });
             }
         }
     }
     out
+}
+
+/// One line of a panel schedule: a breaker position and what is on it.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Row {
+    /// The positions its breaker takes (two, a row apart, for a 240 V circuit); empty when the
+    /// job does not give one.
+    pub positions: Vec<u32>,
+    /// Where its appliances are connected: `L1`, or `L1-L2` for a 240 V circuit.
+    pub leg: String,
+    /// The circuit's id (its `circuit`, else its appliance's name).
+    pub circuit: String,
+    pub appliances: Vec<String>,
+    /// Indices of its loads in the job.
+    pub loads: Vec<usize>,
+    /// Rated watts of every appliance on it, switched on or not.
+    pub watts: f64,
+    /// The shared-neutral circuit it belongs to.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub multiwire: Option<String>,
+    /// True when the balancer leaves it where it is (240 V, marked not movable, or mixed legs).
+    pub stays: bool,
+    /// Set when the layout puts its position on another leg than the job connects it to.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub mismatch: Option<String>,
+}
+
+/// The job's panel as a schedule in position order (circuits with no position last, in job
+/// order), each line checked against the bus layout.
+pub fn schedule(job: &Job, layout: Layout) -> Vec<Row> {
+    let panel = panel(job, Basis::Rated);
+    let legs = job.system().legs();
+    let mut rows: Vec<Row> = panel
+        .circuits
+        .iter()
+        .map(|c| {
+            let first = job.loads()[c.loads[0]].connection();
+            let offsets = poles(job, c);
+            let positions: Vec<u32> = c
+                .slot
+                .map(|p| offsets.iter().map(|k| p + 2 * k).collect())
+                .unwrap_or_default();
+            let wanted: Vec<&'static str> = first.legs().iter().map(|l| l.name()).collect();
+            let by_layout: Vec<&'static str> = positions
+                .iter()
+                .map(|&q| layout.leg_of_slot(q, legs).name())
+                .collect();
+            let mismatch = (!positions.is_empty() && by_layout != wanted).then(|| {
+                format!(
+                    "position {} is on {} in this layout, but its appliances are connected to {}",
+                    positions[0],
+                    by_layout.join("-"),
+                    wanted.join("-")
+                )
+            });
+            Row {
+                positions,
+                leg: wanted.join("-"),
+                circuit: c.id.clone(),
+                appliances: c
+                    .loads
+                    .iter()
+                    .map(|&i| job.loads()[i].name().to_string())
+                    .collect(),
+                loads: c.loads.clone(),
+                watts: c.loads.iter().map(|&i| job.loads()[i].rated_w()).sum(),
+                multiwire: c.multiwire.clone(),
+                stays: !c.movable,
+                mismatch,
+            }
+        })
+        .collect();
+    rows.sort_by_key(|r| r.positions.first().copied().unwrap_or(u32::MAX));
+    rows
 }
 
 /// Every arrangement a person may make, by brute force (for tests; up to 2ⁿ or 3ⁿ): each movable

@@ -22,7 +22,10 @@
 //! supply explains is reported as such, not as a verdict.
 
 use crate::fields::{Checker, Problem, Rule, Unknown};
-use crate::job::{Raw, SystemFile};
+pub use crate::job::{MeterFile, ReadingFile, ReadingSetFile};
+use crate::job::{JobFile, Raw, SystemFile};
+use crate::validate::{METER_KEYS, READING_KEYS};
+use crate::validated::Job;
 use crate::system::SystemKind;
 use crate::validate::validate_system;
 use num_complex::Complex64;
@@ -48,37 +51,6 @@ pub struct ReadingsFile {
     pub system: Raw<SystemFile>,
     pub meter: Raw<MeterFile>,
     pub readings: Raw<Vec<Raw<ReadingFile>>>,
-    /// Keys this format does not define; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
-}
-
-/// The meters' resolution.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct MeterFile {
-    pub volts_resolution: Raw<f64>,
-    pub amps_resolution: Raw<f64>,
-    /// Keys this format does not define; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
-}
-
-/// One set of readings.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct ReadingFile {
-    pub label: Raw<String>,
-    /// `panel` (default) or `meter`: where the voltages were read.
-    pub at: Raw<String>,
-    pub l1_n_v: Raw<f64>,
-    pub l2_n_v: Raw<f64>,
-    pub l1_l2_v: Raw<f64>,
-    pub l1_a: Raw<f64>,
-    pub l2_a: Raw<f64>,
-    /// Each leg current's power factor (lagging), as a power-quality clamp shows; 1 if absent.
-    pub l1_pf: Raw<f64>,
-    pub l2_pf: Raw<f64>,
     /// Keys this format does not define; validation refuses them.
     #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
     pub unknown: Unknown,
@@ -261,56 +233,65 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
         c.fail("system", "is required: an object with kind split-phase");
     } else if let Some(system) = validate_system(&mut c, &file.system) {
         if system.kind() != SystemKind::SplitPhase {
-            c.fail(
-                "system.kind",
-                "diagnosis from readings supports split-phase services only",
-            );
+            c.fail("system.kind", SPLIT_PHASE_ONLY);
         }
     }
-    let meter = c.object(&file.meter, "meter").cloned().unwrap_or_default();
-    c.unknown_keys(
-        &meter.unknown,
-        "meter",
-        &["volts_resolution", "amps_resolution"],
-    );
+    let readings = check_readings(&mut c, "", &file.meter, &file.readings);
+    match readings {
+        Some(r) if c.problems.is_empty() => Ok(r),
+        _ => Err(DiagnoseError::Invalid(c.problems)),
+    }
+}
+
+/// What the diagnosis supports, said where a wye service's readings are given.
+pub const SPLIT_PHASE_ONLY: &str = "diagnosis from readings supports split-phase (120/240 V) services only; on a wye service read each phase to neutral and compare them with the job's solve instead";
+
+/// Checks one list of readings and the meters' resolution; `prefix` is where they sit in the file
+/// (`""` in a readings file, `readings[2].` in a job), so each problem names its field.
+fn check_readings(
+    c: &mut Checker,
+    prefix: &str,
+    meter: &Raw<MeterFile>,
+    list: &Raw<Vec<Raw<ReadingFile>>>,
+) -> Option<Readings> {
+    let meter_path = format!("{prefix}meter");
+    let meter = c.object(meter, &meter_path).cloned().unwrap_or_default();
+    c.unknown_keys(&meter.unknown, &meter_path, METER_KEYS);
     let vres = c
         .number(
             &meter.volts_resolution,
-            "meter.volts_resolution",
+            &format!("{meter_path}.volts_resolution"),
             Rule::Positive(10.0),
         )
         .unwrap_or(0.1);
     let ares = c
         .number(
             &meter.amps_resolution,
-            "meter.amps_resolution",
+            &format!("{meter_path}.amps_resolution"),
             Rule::Positive(10.0),
         )
         .unwrap_or(0.1);
-    let list = match &file.readings {
+    let list_path = format!("{prefix}readings");
+    let list = match list {
         Raw::Given(l) => l.clone(),
         Raw::Absent => {
-            c.fail("readings", "is required: at least two sets of readings");
+            c.fail(&list_path, "is required: at least two sets of readings");
             Vec::new()
         }
         Raw::Invalid(_) => {
-            c.fail("readings", "must be a list of readings");
+            c.fail(&list_path, "must be a list of readings");
             Vec::new()
         }
     };
+    let before = c.problems.len();
     let mut readings = Vec::new();
     for (i, raw) in list.iter().enumerate() {
-        let path = |f: &str| format!("readings[{i}].{f}");
-        let Some(r) = c.object(raw, &format!("readings[{i}]")) else {
+        let at_path = format!("{list_path}[{i}]");
+        let path = |f: &str| format!("{at_path}.{f}");
+        let Some(r) = c.object(raw, &at_path) else {
             continue;
         };
-        c.unknown_keys(
-            &r.unknown,
-            &format!("readings[{i}]"),
-            &[
-                "label", "at", "l1_n_v", "l2_n_v", "l1_l2_v", "l1_a", "l2_a", "l1_pf", "l2_pf",
-            ],
-        );
+        c.unknown_keys(&r.unknown, &at_path, READING_KEYS);
         let v1 = c.required_number(&r.l1_n_v, &path("l1_n_v"), Rule::Positive(1000.0));
         let v2 = c.required_number(&r.l2_n_v, &path("l2_n_v"), Rule::Positive(1000.0));
         let v12 = c.number(&r.l1_l2_v, &path("l1_l2_v"), Rule::Positive(2000.0));
@@ -354,7 +335,7 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
             });
         }
     }
-    if c.problems.is_empty() {
+    if c.problems.len() == before {
         for place in [Place::Panel, Place::Meter] {
             let here: Vec<&Reading> = readings.iter().filter(|r| r.at == place).collect();
             if here.is_empty() {
@@ -365,7 +346,7 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
                 Place::Meter => "meter",
             };
             if here.len() < 2 {
-                c.fail("readings", format!("need at least two readings at the {name} (one before and one after switching a load)"));
+                c.fail(&list_path, format!("need at least two readings at the {name} (one before and one after switching a load)"));
                 continue;
             }
             let spread = |f: fn(&Reading) -> f64| {
@@ -375,21 +356,137 @@ pub fn validate_readings(file: &ReadingsFile) -> Result<Readings, DiagnoseError>
             };
             if spread(|r| r.i1).max(spread(|r| r.i2)) < MIN_CURRENT_CHANGE_A {
                 c.fail(
-                    "readings",
+                    &list_path,
                     format!("the readings at the {name} show no change in leg current: switch a known load on one leg (at least {MIN_CURRENT_CHANGE_A} A) between readings"),
                 );
             }
         }
     }
-    if c.problems.is_empty() {
-        Ok(Readings {
-            readings,
-            volts_resolution: vres,
-            amps_resolution: ares,
-        })
-    } else {
-        Err(DiagnoseError::Invalid(c.problems))
+    (c.problems.len() == before).then_some(Readings {
+        readings,
+        volts_resolution: vres,
+        amps_resolution: ares,
+    })
+}
+
+/// One dated set of a job's readings and what its diagnosis found.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct SetOutcome {
+    /// Where the set sits in the job's `readings` list.
+    pub index: usize,
+    pub taken: String,
+    pub note: String,
+    /// The diagnosis, when the set's readings allow one.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub diagnosis: Option<Diagnosis>,
+    /// Why there is no diagnosis: each problem names its field in the job file.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub problems: Vec<Problem>,
+}
+
+/// Every set of a job's readings diagnosed, and the latest compared with the first.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct History {
+    pub sets: Vec<SetOutcome>,
+    /// The first diagnosed set against the latest, when there are two: did the repair help?
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub comparison: Option<String>,
+}
+
+/// Diagnoses each of a job's reading sets on the job's own service.
+///
+/// The service kind comes from the validated job; the readings themselves stay in the job file as
+/// typed and are validated here, each problem named by its path in the job
+/// (`readings[1].readings[0].l2_n_v`).
+pub fn history(job: &Job, file: &JobFile) -> History {
+    let sets = file.readings.given().cloned().unwrap_or_default();
+    let mut out = Vec::new();
+    for (index, raw) in sets.iter().enumerate() {
+        let prefix = format!("readings[{index}].");
+        let mut c = Checker::new();
+        let set = c
+            .object(raw, &format!("readings[{index}]"))
+            .cloned()
+            .unwrap_or_default();
+        if job.system().kind() != SystemKind::SplitPhase {
+            c.fail("system.kind", SPLIT_PHASE_ONLY);
+        }
+        let readings = check_readings(&mut c, &prefix, &set.meter, &set.readings);
+        let (diagnosis, problems) = match readings {
+            Some(r) if c.problems.is_empty() => match diagnose(&r) {
+                Ok(d) => (Some(d), Vec::new()),
+                Err(DiagnoseError::Invalid(p)) => (None, p),
+                Err(DiagnoseError::Degenerate(m)) => (
+                    None,
+                    vec![Problem {
+                        path: format!("{prefix}readings"),
+                        message: m,
+                    }],
+                ),
+            },
+            _ => (None, c.problems),
+        };
+        out.push(SetOutcome {
+            index,
+            taken: set.taken.given().cloned().unwrap_or_default(),
+            note: set.note.given().cloned().unwrap_or_default(),
+            diagnosis,
+            problems,
+        });
     }
+    let comparison = compare(&out);
+    History {
+        sets: out,
+        comparison,
+    }
+}
+
+/// "On 2026-11-30 the neutral measured 0.52 ± 0.05 Ω (dangerous); on 2026-12-02 0.04 ± 0.03 Ω
+/// (healthy): 0.48 Ω less." A change within the two sets' combined uncertainty is said to be
+/// none (the uncertainties are about 99.7 % intervals, so their sum is a safe bound).
+fn compare(sets: &[SetOutcome]) -> Option<String> {
+    let done: Vec<(&SetOutcome, &Diagnosis)> = sets
+        .iter()
+        .filter_map(|s| s.diagnosis.as_ref().map(|d| (s, d)))
+        .collect();
+    let (&(s0, d0), &(s1, d1)) = (done.first()?, done.last()?);
+    if s0.index == s1.index {
+        return None;
+    }
+    let when = |s: &SetOutcome| {
+        if s.taken.trim().is_empty() {
+            format!("set {}", s.index + 1)
+        } else {
+            s.taken.trim().to_string()
+        }
+    };
+    let word = |v: Verdict| match v {
+        Verdict::Healthy => "healthy",
+        Verdict::Suspect => "suspect",
+        Verdict::Dangerous => "dangerous",
+        Verdict::Inconclusive => "inconclusive",
+        Verdict::NotPhysical => "not physical",
+    };
+    let change = d1.neutral_ohms - d0.neutral_ohms;
+    let bound = d0.neutral_ohms_uncertainty + d1.neutral_ohms_uncertainty;
+    let verdict = if change.abs() <= bound {
+        format!("no change beyond the readings' uncertainty (±{bound:.3} Ω)")
+    } else if change < 0.0 {
+        format!("{:.3} Ω less", -change)
+    } else {
+        format!("{change:.3} Ω more: the connection is getting worse")
+    };
+    Some(format!(
+        "First test ({}): neutral {:.3} ± {:.3} Ω, {}. Latest ({}): {:.3} ± {:.3} Ω, {}. That is {verdict}.",
+        when(s0),
+        d0.neutral_ohms,
+        d0.neutral_ohms_uncertainty,
+        word(d0.verdict),
+        when(s1),
+        d1.neutral_ohms,
+        d1.neutral_ohms_uncertainty,
+        word(d1.verdict),
+    ))
 }
 
 /// The conductors' reactance as a fraction of their resistance assumed by the second fit that
