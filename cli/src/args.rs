@@ -76,7 +76,9 @@ pub enum Command {
         #[arg(long, default_value_t = 200, value_parser = clap::value_parser!(u16).range(3..=5000))]
         points: u16,
     },
-    /// The neutral's and the hots' resistance from meter readings, with a verdict.
+    /// The neutral's and the hots' resistance from meter readings, with a verdict: a readings
+    /// file, or a job file (one with `loads`) whose every dated set of readings is diagnosed and the
+    /// latest compared with the first.
     #[command(after_help = AFTER_HELP)]
     Diagnose(Inputs),
     /// Which breakers to swap so the neutral carries the least current.

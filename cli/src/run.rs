@@ -167,6 +167,16 @@ pub fn run(command: Command, terminal: bool) -> Outcome {
         Command::Diagnose(inputs) => {
             let f = format(inputs.format);
             each(&inputs, f, |text| {
+                if is_job(text) {
+                    let (file, job) = load_job(text).map_err(engine)?;
+                    let h = diagnose::history(&job, &file);
+                    if h.sets.is_empty() {
+                        return Err(bad(
+                            "readings: the job has no sets of readings to diagnose".to_string()
+                        ));
+                    }
+                    return done(&h, text::history(&h));
+                }
                 let readings = diagnose::parse_readings(text).map_err(|e| bad(e.to_string()))?;
                 let d = diagnose::diagnose(&readings).map_err(|e| bad(e.to_string()))?;
                 done(&d, text::diagnosis(&d))
@@ -338,4 +348,13 @@ mod tests {
         let f = engine(EngineError::Solve(SolveError::Singular));
         assert_eq!(f.code, EXIT_NO_SOLVE);
     }
+}
+
+/// True when the text is a job file (it has `loads`) rather than a readings file: `diagnose`
+/// takes either.
+fn is_job(text: &str) -> bool {
+    serde_json::from_str::<serde_json::Value>(text)
+        .ok()
+        .and_then(|v| v.as_object().map(|o| o.contains_key("loads")))
+        .unwrap_or(false)
 }

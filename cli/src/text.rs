@@ -4,7 +4,7 @@
 use crate::args::CAUTIONS;
 use tapline_core::report::Report;
 use tapline_core::tools::balance::Balance;
-use tapline_core::tools::diagnose::Diagnosis;
+use tapline_core::tools::diagnose::{Diagnosis, History};
 use tapline_core::tools::size::Sizing;
 use tapline_core::tools::start::Start;
 use tapline_core::whatif::WhatIf;
@@ -127,6 +127,46 @@ pub fn diagnosis(d: &Diagnosis) -> String {
     );
     for c in &d.cautions {
         s.push_str(&format!("  {c}\n"));
+    }
+    with_cautions(s)
+}
+
+/// Every set of a job's readings, and the re-test against the first test.
+pub fn history(h: &History) -> String {
+    let mut s = String::new();
+    for set in &h.sets {
+        let when = if set.taken.is_empty() {
+            format!("Set {}", set.index + 1)
+        } else {
+            format!("Set {} ({})", set.index + 1, set.taken)
+        };
+        s.push_str(&format!(
+            "{when}{}\n",
+            if set.note.is_empty() {
+                String::new()
+            } else {
+                format!(": {}", set.note)
+            }
+        ));
+        match &set.diagnosis {
+            Some(d) => s.push_str(&format!(
+                "  Neutral {:.3} ± {:.3} Ω, each hot {:.3} ± {:.3} Ω: {:?}\n  {}\n",
+                d.neutral_ohms,
+                d.neutral_ohms_uncertainty,
+                d.hot_ohms,
+                d.hot_ohms_uncertainty,
+                d.verdict,
+                d.reason
+            )),
+            None => {
+                for p in &set.problems {
+                    s.push_str(&format!("  {p}\n"));
+                }
+            }
+        }
+    }
+    if let Some(c) = &h.comparison {
+        s.push_str(&format!("{c}\n"));
     }
     with_cautions(s)
 }

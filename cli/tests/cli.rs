@@ -288,6 +288,34 @@ fn diagnose_prints_resistances_and_a_verdict() {
     );
 }
 
+/// A job file with dated sets of readings: each set diagnosed, the re-test compared with the
+/// first. Hand check of the second set: the kettle adds 12.5 A to L1 and to the neutral, and L2
+/// rises 0.4 V, so the neutral is about 0.4 / 12.5 = 0.032 Ω (Ohm's law).
+#[test]
+fn diagnose_takes_a_job_with_its_reading_sets() {
+    let out = tapline(&["diagnose", &data("retest.json")], None);
+    assert_ok(&out);
+    let h = stdout_json(&out);
+    let sets = h["sets"].as_array().unwrap();
+    assert_eq!(sets.len(), 2);
+    assert_eq!(sets[1]["taken"], "2026-12-02 09:40");
+    let after = sets[1]["diagnosis"]["neutral_ohms"].as_f64().unwrap();
+    assert!((after - 0.032).abs() < 0.002, "{after}");
+    assert_eq!(sets[1]["diagnosis"]["verdict"], "healthy");
+    assert!(h["comparison"].as_str().unwrap().contains("less"));
+    let text = tapline(
+        &["diagnose", &data("retest.json"), "--format", "text"],
+        None,
+    );
+    assert!(String::from_utf8_lossy(&text.stdout).contains("Set 2 (2026-12-02 09:40)"));
+    let none = tapline(
+        &["diagnose", "-"],
+        Some(r#"{"system":{"kind":"split-phase"},"loads":[]}"#),
+    );
+    assert_eq!(none.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&none.stderr).contains("readings: the job has no sets"));
+}
+
 #[test]
 fn balance_prints_before_after_and_moves() {
     let out = tapline(&["balance", &data("panel.json")], None);

@@ -154,7 +154,6 @@ pub struct ReadingSetFile {
     pub unknown: Unknown,
 }
 
-
 /// A shared-neutral (multiwire) branch circuit: its id and its neutral conductor.
 #[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
 #[serde(default)]

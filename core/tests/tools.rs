@@ -674,11 +674,18 @@ proptest! {
 /// position order, with no line on the wrong leg for its position.
 #[test]
 fn the_schedule_lists_positions_in_order() {
-    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/panel.json")).unwrap();
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/data/panel.json"
+    ))
+    .unwrap();
     let j = tapline_core::load_job(&text).unwrap().1;
     let rows = schedule(&j, Layout::Standard);
     let positions: Vec<Vec<u32>> = rows.iter().map(|r| r.positions.clone()).collect();
-    assert_eq!(positions, vec![vec![1], vec![2, 4], vec![3], vec![5], vec![9]]);
+    assert_eq!(
+        positions,
+        vec![vec![1], vec![2, 4], vec![3], vec![5], vec![9]]
+    );
     assert_eq!(rows[1].leg, "L1-L2");
     assert!(rows[1].stays);
     assert!(!rows[0].stays);
@@ -686,7 +693,11 @@ fn the_schedule_lists_positions_in_order() {
     assert!(rows.iter().all(|r| r.mismatch.is_none()));
     // Flipped, position 1 is on L2, so the kitchen circuit connected to L1 is flagged.
     let flipped = schedule(&j, Layout::Flipped);
-    assert!(flipped[0].mismatch.as_deref().unwrap().contains("position 1 is on L2"));
+    assert!(flipped[0]
+        .mismatch
+        .as_deref()
+        .unwrap()
+        .contains("position 1 is on L2"));
 }
 
 /// A job keeps its dated sets of readings; each is diagnosed on the job's service and the re-test
@@ -708,11 +719,20 @@ fn a_retest_after_a_repair_is_compared_with_the_first_test() {
     assert_eq!(h.sets.len(), 2);
     let first = h.sets[0].diagnosis.as_ref().unwrap();
     let last = h.sets[1].diagnosis.as_ref().unwrap();
-    assert!(matches!(first.verdict, Verdict::Dangerous | Verdict::Inconclusive));
-    assert!(matches!(last.verdict, Verdict::Healthy | Verdict::Inconclusive));
+    assert!(matches!(
+        first.verdict,
+        Verdict::Dangerous | Verdict::Inconclusive
+    ));
+    assert!(matches!(
+        last.verdict,
+        Verdict::Healthy | Verdict::Inconclusive
+    ));
     assert!(last.neutral_ohms < first.neutral_ohms);
     let c = h.comparison.unwrap();
-    assert!(c.contains("2026-11-30 10:15") && c.contains("2026-12-02 09:40") && c.contains("less"), "{c}");
+    assert!(
+        c.contains("2026-11-30 10:15") && c.contains("2026-12-02 09:40") && c.contains("less"),
+        "{c}"
+    );
 
     // A half-typed reading does not stop the job from validating; its set names the field.
     file["readings"][1]["readings"][0]["l2_n_v"] = json!("12o");

@@ -22,12 +22,12 @@
 //! supply explains is reported as such, not as a verdict.
 
 use crate::fields::{Checker, Problem, Rule, Unknown};
-pub use crate::job::{MeterFile, ReadingFile, ReadingSetFile};
 use crate::job::{JobFile, Raw, SystemFile};
-use crate::validate::{METER_KEYS, READING_KEYS};
-use crate::validated::Job;
+pub use crate::job::{MeterFile, ReadingFile, ReadingSetFile};
 use crate::system::SystemKind;
 use crate::validate::validate_system;
+use crate::validate::{METER_KEYS, READING_KEYS};
+use crate::validated::Job;
 use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 
