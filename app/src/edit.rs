@@ -9,9 +9,10 @@ use tapline_core::job::{
     JOB_VERSION,
 };
 use tapline_core::library::{Appliance, Hookup};
-use tapline_core::tools::balance::Move;
-use tapline_core::tools::diagnose::{ReadingFile, ReadingsFile};
 use tapline_core::validate::Problem;
+
+pub mod panel;
+pub mod readings;
 
 /// Reads a number typed by a user. Empty text is "absent"; a comma decimal separator is accepted;
 /// anything else that is not a number is kept as typed so validation can name the field.
@@ -602,19 +603,6 @@ pub fn circuit_of(load: &LoadFile) -> String {
     }
 }
 
-/// Applies balancing moves to the job: every load of a moved circuit goes to its new leg.
-pub fn apply_moves(job: &mut JobFile, moves: &[Move]) {
-    if let Raw::Given(loads) = &mut job.loads {
-        for raw in loads.iter_mut() {
-            if let Raw::Given(load) = raw {
-                if let Some(m) = moves.iter().find(|m| m.circuit == circuit_of(load)) {
-                    load.connect = Raw::Given(format!("{}-N", m.to));
-                }
-            }
-        }
-    }
-}
-
 /// The shared-neutral circuits as given.
 pub fn multiwire_list(job: &JobFile) -> Vec<MultiwireFile> {
     entries(&job.multiwire)
@@ -673,54 +661,6 @@ pub fn set_multiwire_field(job: &mut JobFile, i: usize, field: &str, text: &str)
         "size" => m.size = Raw::Given(Value::String(text.to_string())),
         "column_c" => m.column_c = number_from_text(text),
         _ => {}
-    }
-}
-
-/// One set of meter readings as typed.
-#[derive(Clone, Debug, PartialEq, Default)]
-pub struct ReadingForm {
-    pub label: String,
-    pub at: String,
-    pub l1_n_v: String,
-    pub l2_n_v: String,
-    pub l1_a: String,
-    pub l2_a: String,
-}
-
-/// The readings file for the diagnosis, from the forms (split-phase at 120 V).
-pub fn readings_file(forms: &[ReadingForm]) -> ReadingsFile {
-    ReadingsFile {
-        version: Raw::Given(1),
-        system: Raw::Given(SystemFile {
-            kind: Raw::Given("split-phase".to_string()),
-            volts_to_neutral: Raw::Given(120.0),
-            frequency_hz: Raw::Given(60.0),
-            phases: Raw::Absent,
-            ..SystemFile::default()
-        }),
-        meter: Raw::Absent,
-        unknown: Default::default(),
-        readings: Raw::Given(
-            forms
-                .iter()
-                .map(|f| {
-                    Raw::Given(ReadingFile {
-                        label: Raw::Given(f.label.clone()),
-                        at: Raw::Given(if f.at.is_empty() {
-                            "panel".to_string()
-                        } else {
-                            f.at.clone()
-                        }),
-                        l1_n_v: number_from_text(&f.l1_n_v),
-                        l2_n_v: number_from_text(&f.l2_n_v),
-                        l1_l2_v: Raw::Absent,
-                        l1_a: number_from_text(&f.l1_a),
-                        l2_a: number_from_text(&f.l2_a),
-                        ..ReadingFile::default()
-                    })
-                })
-                .collect(),
-        ),
     }
 }
 
@@ -851,31 +791,6 @@ mod tests {
     }
 
     #[test]
-    fn balancing_moves_apply_to_every_load_of_a_circuit() {
-        let mut job = new_job("Test");
-        add_custom(&mut job);
-        add_custom(&mut job);
-        if let Raw::Given(loads) = &mut job.loads {
-            for l in loads.iter_mut() {
-                if let Raw::Given(l) = l {
-                    l.circuit = Raw::Given("7".to_string());
-                }
-            }
-        }
-        let m = Move {
-            circuit: "7".to_string(),
-            from: "L1",
-            to: "L2",
-            slot: None,
-            appliances: Vec::new(),
-            multiwire: None,
-        };
-        apply_moves(&mut job, &[m]);
-        assert!(loads(&job).iter().all(|l| text_of(&l.connect) == "L2-N"));
-        assert!(validate(&job).is_ok());
-    }
-
-    #[test]
     fn shared_neutral_circuits_are_added_named_and_removed() {
         let mut job = new_job("Test");
         add_custom(&mut job);
@@ -888,29 +803,6 @@ mod tests {
         remove_multiwire(&mut job, 0);
         assert!(loads(&job)[0].multiwire.is_absent());
         assert!(validate(&job).is_ok());
-    }
-
-    #[test]
-    fn readings_forms_feed_the_diagnosis() {
-        let forms = vec![
-            ReadingForm {
-                l1_n_v: "104".into(),
-                l2_n_v: "104".into(),
-                l1_a: "0".into(),
-                l2_a: "0".into(),
-                ..Default::default()
-            },
-            ReadingForm {
-                l1_n_v: "101".into(),
-                l2_n_v: "104".into(),
-                l1_a: "20".into(),
-                l2_a: "10".into(),
-                ..Default::default()
-            },
-        ];
-        let r = tapline_core::tools::diagnose::validate_readings(&readings_file(&forms)).unwrap();
-        let d = tapline_core::tools::diagnose::diagnose(&r).unwrap();
-        assert!((d.neutral_ohms - 0.1).abs() < 1e-9);
     }
 
     #[test]

@@ -14,7 +14,7 @@ pub mod state;
 pub mod storage;
 
 use leptos::prelude::*;
-use pages::{cautions::CautionsPage, diagnose::DiagnosePage, job::JobPage, jobs::JobsPage};
+use pages::{cautions::CautionsPage, job::JobPage, jobs::JobsPage};
 use state::{AppState, Screen};
 
 /// The whole app.
@@ -36,7 +36,6 @@ pub fn App() -> impl IntoView {
                 Screen::Jobs => view! { <JobsPage /> }.into_any(),
                 Screen::Job => view! { <JobPage /> }.into_any(),
                 Screen::Cautions => view! { <CautionsPage /> }.into_any(),
-                Screen::Diagnose => view! { <DiagnosePage /> }.into_any(),
             }}
         </main>
     }

@@ -6,8 +6,8 @@ use crate::storage::{self, Settings, StoredJob};
 use leptos::prelude::*;
 use tapline_core::job::{JobFile, Raw};
 use tapline_core::report::{analyze, Report};
-use tapline_core::tools::balance::{balance, Balance, Layout};
-use tapline_core::tools::diagnose::{diagnose, validate_readings, Diagnosis};
+use tapline_core::tools::balance::{balance, schedule, Balance, Layout, Row};
+use tapline_core::tools::diagnose::{history, History};
 use tapline_core::validate::{validate, Problem};
 use tapline_core::whatif::{sweep, sweep_points, what_if, Sweep, WhatIf};
 
@@ -20,7 +20,6 @@ pub enum Screen {
     Jobs,
     Job,
     Cautions,
-    Diagnose,
 }
 
 /// Which part of a job is showing.
@@ -31,6 +30,7 @@ pub enum Tab {
     Results,
     WhatIf,
     Panel,
+    Readings,
 }
 
 /// A saved job in the list.
@@ -60,18 +60,35 @@ pub struct AppState {
     pub report: Memo<Option<Result<Report, String>>>,
     pub what_if: Memo<Option<Result<WhatIf, String>>>,
     pub sweep: Memo<Option<Result<Sweep, String>>>,
-    /// Meter readings being entered on the diagnosis screen (kept for the session).
-    pub readings: RwSignal<Vec<edit::ReadingForm>>,
-    /// The diagnosis of those readings, or the problems with them, one line each.
-    pub diagnosis: Memo<Result<Diagnosis, Vec<String>>>,
+    /// Every dated set of the job's readings diagnosed (none while the job itself has problems).
+    pub diagnosis: Memo<Option<History>>,
     /// True when breaker position 1 is on L2 in this panel.
     pub flipped: RwSignal<bool>,
     pub balance: Memo<Option<Balance>>,
+    /// The panel schedule in position order, checked against the layout.
+    pub schedule: Memo<Option<Vec<Row>>>,
+    /// The legs of the job's service (empty while the job has problems).
+    pub legs: Memo<Vec<tapline_core::system::Leg>>,
+    /// The job as it was before balancing moves were applied, for undo.
+    pub before_moves: RwSignal<Option<JobFile>>,
 }
 
 /// Milliseconds since 1970, from the browser's clock.
 pub fn now_ms() -> f64 {
     js_sys::Date::now()
+}
+
+/// The browser's local time as a reading set's date, `2026-12-02 09:40`.
+pub fn taken_now() -> String {
+    let d = js_sys::Date::new_0();
+    format!(
+        "{:04}-{:02}-{:02} {:02}:{:02}",
+        d.get_full_year(),
+        d.get_month() + 1,
+        d.get_date(),
+        d.get_hours(),
+        d.get_minutes()
+    )
 }
 
 fn new_id() -> String {
@@ -112,22 +129,8 @@ impl AppState {
                     .map(|j| sweep(j, &sweep_points(SWEEP_POINTS)).map_err(|e| e.to_string()))
             })
         });
-        let readings = RwSignal::new(vec![
-            edit::ReadingForm {
-                label: "Before".to_string(),
-                ..Default::default()
-            },
-            edit::ReadingForm {
-                label: "Known load switched on".to_string(),
-                ..Default::default()
-            },
-        ]);
         let diagnosis = Memo::new(move |_| {
-            readings.with(|forms| {
-                validate_readings(&edit::readings_file(forms))
-                    .and_then(|r| diagnose(&r))
-                    .map_err(|e| e.to_string().lines().map(str::to_string).collect())
-            })
+            valid.with(|v| v.as_ref().ok().map(|j| draft.with(|file| history(j, file))))
         });
         let flipped = RwSignal::new(false);
         let balance = Memo::new(move |_| {
@@ -137,6 +140,14 @@ impl AppState {
                 Layout::Standard
             };
             valid.with(|v| v.as_ref().ok().map(|j| balance(j, layout)))
+        });
+        let schedule = Memo::new(move |_| {
+            let layout = if flipped.get() {
+                Layout::Flipped
+            } else {
+                Layout::Standard
+            };
+            valid.with(|v| v.as_ref().ok().map(|j| schedule(j, layout)))
         });
         let state = AppState {
             jobs: RwSignal::new(Vec::new()),
@@ -153,10 +164,18 @@ impl AppState {
             report,
             what_if,
             sweep,
-            readings,
             diagnosis,
             flipped,
             balance,
+            schedule,
+            legs: Memo::new(move |_| {
+                valid.with(|v| {
+                    v.as_ref()
+                        .map(|j| j.system().legs().to_vec())
+                        .unwrap_or_default()
+                })
+            }),
+            before_moves: RwSignal::new(None),
         };
         state.load();
         state
@@ -215,6 +234,7 @@ impl AppState {
         };
         self.draft.set(entry.stored.job);
         self.open_id.set(Some(entry.id));
+        self.before_moves.set(None);
         self.structure.update(|s| *s += 1);
         self.tab.set(Tab::Results);
         self.screen.set(Screen::Job);
@@ -235,6 +255,29 @@ impl AppState {
         let id = entry.id.clone();
         self.jobs.update(|j| j.insert(0, entry));
         self.open(&id);
+    }
+
+    /// Starts a job for a quick diagnosis: a new job with one dated set of readings, opened on its
+    /// readings.
+    pub fn new_diagnosis(&self) {
+        let mut job = edit::new_job("Neutral diagnosis");
+        edit::readings::add_set(&mut job, &taken_now(), "first test");
+        self.add_and_open(job);
+        self.tab.set(Tab::Readings);
+    }
+
+    /// Applies the balancing moves to the job, keeping the job as it was for undo.
+    pub fn apply_moves(&self, moves: &[tapline_core::tools::balance::Move]) {
+        self.before_moves.set(Some(self.draft.get_untracked()));
+        self.edit_structure(|j| edit::panel::apply_moves(j, moves));
+    }
+
+    /// Puts the job back as it was before the moves were applied.
+    pub fn undo_moves(&self) {
+        if let Some(job) = self.before_moves.get_untracked() {
+            self.before_moves.set(None);
+            self.edit_structure(|j| *j = job);
+        }
     }
 
     /// Applies an edit to the draft and saves it if the result is valid. An invalid draft stays on

@@ -331,6 +331,15 @@ fn library_json() -> Vec<LibraryEntry> {
         .collect()
 }
 
+/// True when the text is a job file (it has `loads`) rather than a readings file: `diagnose`
+/// takes either.
+fn is_job(text: &str) -> bool {
+    serde_json::from_str::<serde_json::Value>(text)
+        .ok()
+        .and_then(|v| v.as_object().map(|o| o.contains_key("loads")))
+        .unwrap_or(false)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -348,13 +357,4 @@ mod tests {
         let f = engine(EngineError::Solve(SolveError::Singular));
         assert_eq!(f.code, EXIT_NO_SOLVE);
     }
-}
-
-/// True when the text is a job file (it has `loads`) rather than a readings file: `diagnose`
-/// takes either.
-fn is_job(text: &str) -> bool {
-    serde_json::from_str::<serde_json::Value>(text)
-        .ok()
-        .and_then(|v| v.as_object().map(|o| o.contains_key("loads")))
-        .unwrap_or(false)
 }

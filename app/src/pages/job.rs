@@ -1,7 +1,8 @@
 //! One job: its tabs.
 
 use super::{
-    loads::LoadsTab, panel::PanelTab, results::ResultsTab, service::ServiceTab, whatif::WhatIfTab,
+    loads::LoadsTab, panel::PanelTab, readings::ReadingsTab, results::ResultsTab,
+    service::ServiceTab, whatif::WhatIfTab,
 };
 use crate::edit;
 use crate::files;
@@ -37,6 +38,7 @@ pub fn JobPage() -> impl IntoView {
                 {tab_button(Tab::Results, "Results", "tab-results")}
                 {tab_button(Tab::WhatIf, "What-if", "tab-whatif")}
                 {tab_button(Tab::Panel, "Panel", "tab-panel")}
+                {tab_button(Tab::Readings, "Readings", "tab-readings")}
             </nav>
             {move || {
                 // Re-drawn when the tab or the job's structure changes, so fields start from the job.
@@ -47,6 +49,7 @@ pub fn JobPage() -> impl IntoView {
                     Tab::Results => view! { <ResultsTab /> }.into_any(),
                     Tab::WhatIf => view! { <WhatIfTab /> }.into_any(),
                     Tab::Panel => view! { <PanelTab /> }.into_any(),
+                    Tab::Readings => view! { <ReadingsTab /> }.into_any(),
                 }
             }}
         </section>

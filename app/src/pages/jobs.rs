@@ -3,7 +3,7 @@
 use crate::edit;
 use crate::files;
 use crate::format;
-use crate::state::{status_of, AppState, Entry, Screen};
+use crate::state::{status_of, AppState, Entry};
 use leptos::prelude::*;
 use tapline_core::job::job_to_json;
 
@@ -60,7 +60,7 @@ pub fn JobsPage() -> impl IntoView {
                     "Import job"
                     <input type="file" accept=".json,application/json" class="hidden-file" data-testid="import-file" node_ref=file_input on:change=on_import />
                 </label>
-                <button data-testid="open-diagnose" on:click=move |_| state.screen.set(Screen::Diagnose)>"Diagnose a neutral"</button>
+                <button data-testid="open-diagnose" on:click=move |_| state.new_diagnosis()>"Diagnose a neutral"</button>
             </div>
             <Show when=move || !state.import_problems.get().is_empty()>
                 <div class="problems" role="alert" data-testid="import-problems">
