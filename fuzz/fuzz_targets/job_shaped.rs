@@ -1,14 +1,17 @@
-//! Valid-shaped jobs with extreme numbers through every entry point: solve, what-if, sweep and
-//! motor start. The same job gives the same verdict through solve and through the what-if's
+//! Valid-shaped jobs with extreme numbers through every entry point: solve, what-if, sweep,
+//! motor start and the diagnosis of the job's reading sets. The same job gives the same verdict through solve and through the what-if's
 //! matching state; every answer holds only finite numbers or documented nulls.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
 use tapline_core::validate::NeutralState;
 
 fuzz_target!(|data: &[u8]| {
-    let Some((_, job)) = tapline_fuzz::valid_job(data) else {
+    let Some((value, job)) = tapline_fuzz::valid_job(data) else {
         return;
     };
+    let file = tapline_core::job::parse_job(&value.to_string()).unwrap();
+    let history = tapline_core::tools::diagnose::history(&job, &file);
+    tapline_fuzz::assert_documented(&serde_json::to_value(&history).unwrap(), "");
     let solved = tapline_core::report::analyze(&job);
     if let Ok(r) = &solved {
         tapline_fuzz::assert_documented(&serde_json::to_value(r).unwrap(), "");

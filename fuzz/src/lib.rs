@@ -136,6 +136,15 @@ pub fn job(u: &mut Unstructured) -> arbitrary::Result<Value> {
         job["transformer"] = json!({"kva":num(number(u, 0.5, 500.0)?),"primary_v":12470,
             "impedance_pct":num(number(u, 0.1, 25.0)?),"x_over_r":num(number(u, 0.0, 10.0)?)});
     }
+    if u.arbitrary()? {
+        let sets = u.int_in_range(1..=2)?;
+        let mut list = Vec::new();
+        for k in 0..sets {
+            list.push(json!({"taken":format!("2026-12-0{} 09:40", k + 1),
+                "readings":readings(u)?["readings"].clone()}));
+        }
+        job["readings"] = json!(list);
+    }
     Ok(job)
 }
 
