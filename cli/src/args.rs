@@ -107,6 +107,11 @@ pub enum Command {
         #[arg(long, default_value_t = 4.0)]
         starts_per_hour: f64,
     },
+    /// What if we add this: the job as found beside the job with its planned appliances
+    /// (`"planned": true`): leg and neutral currents, every appliance's voltage, transformer
+    /// loading, fault current at the service and how far each leg is below nominal.
+    #[command(after_help = AFTER_HELP)]
+    Plan(Inputs),
     /// Every standard size of one run side by side: its drop, its ampacity, and the smallest that
     /// meets both (the run format is documented in the engine's `tools/size.rs`).
     #[command(after_help = AFTER_HELP)]

@@ -9,7 +9,7 @@ use serde_json::Value;
 use std::ffi::OsString;
 use std::io::{IsTerminal, Read, Write};
 use std::process::ExitCode;
-use tapline_core::tools::{balance, diagnose, size, start};
+use tapline_core::tools::{balance, diagnose, plan, size, start};
 use tapline_core::whatif::{sweep, sweep_csv, sweep_points, what_if};
 use tapline_core::{library, load_job, report, EngineError};
 
@@ -216,6 +216,14 @@ pub fn run(command: Command, terminal: bool) -> Outcome {
                 })?;
                 let table = size::size(&run);
                 done(&table, text::sizing(&table))
+            })
+        }
+        Command::Plan(inputs) => {
+            let f = format(inputs.format);
+            each(&inputs, f, |text| {
+                let (_, job) = load_job(text).map_err(engine)?;
+                let p = plan::plan(&job).map_err(|e| engine(EngineError::Solve(e)))?;
+                done(&p, text::plan(&p))
             })
         }
         Command::Start {

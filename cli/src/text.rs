@@ -5,6 +5,7 @@ use crate::args::CAUTIONS;
 use tapline_core::report::Report;
 use tapline_core::tools::balance::Balance;
 use tapline_core::tools::diagnose::{Diagnosis, History};
+use tapline_core::tools::plan::Plan;
 use tapline_core::tools::size::Sizing;
 use tapline_core::tools::start::Start;
 use tapline_core::whatif::WhatIf;
@@ -185,6 +186,50 @@ pub fn balance(b: &Balance) -> String {
     }
     s.push_str("Move breakers only with the main off and the panel tested dead.\n");
     with_notes(s, &b.notes)
+}
+
+/// A plan: the job as found and with its planned appliances.
+pub fn plan(p: &Plan) -> String {
+    let legs = |m: &std::collections::BTreeMap<String, f64>| {
+        m.iter()
+            .map(|(k, v)| format!("{k} {v:.1} A"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let mut s = format!(
+        "Planned: {}\n  As found: {}, neutral {:.1} A{}\n  With them: {}, neutral {:.1} A{}\n",
+        if p.planned.is_empty() {
+            "nothing".to_string()
+        } else {
+            p.planned.join(", ")
+        },
+        legs(&p.before.legs_a),
+        p.before.neutral_current_a,
+        p.before
+            .transformer_loading_pct
+            .map(|t| format!(", transformer {t:.0} % loaded"))
+            .unwrap_or_default(),
+        legs(&p.after.legs_a),
+        p.after.neutral_current_a,
+        p.after
+            .transformer_loading_pct
+            .map(|t| format!(", transformer {t:.0} % loaded"))
+            .unwrap_or_default(),
+    );
+    for a in &p.appliances {
+        s.push_str(&format!(
+            "  {:<24} {} -> {} {}\n",
+            a.name,
+            if a.planned {
+                "(planned)".to_string()
+            } else {
+                volts(a.before_v)
+            },
+            volts(a.after_v),
+            a.after.label()
+        ));
+    }
+    with_notes(s, &p.notes)
 }
 
 /// A motor start.

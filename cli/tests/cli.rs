@@ -316,6 +316,40 @@ fn diagnose_takes_a_job_with_its_reading_sets() {
     assert!(String::from_utf8_lossy(&none.stderr).contains("readings: the job has no sets"));
 }
 
+/// A planned 11.5 kW, 240 V charger at 0.99 power factor draws about 11500 / (240 × 0.99) =
+/// 48.4 A on each hot (a little less at the lowered voltage) and nothing in the neutral; on a
+/// 25 kVA transformer (full load 25000 / 240 = 104 A) that is about 46 points more loading.
+#[test]
+fn plan_compares_the_job_as_found_with_its_planned_appliances() {
+    let out = tapline(&["plan", &data("planned.json")], None);
+    assert_ok(&out);
+    let p = stdout_json(&out);
+    assert_eq!(p["planned"][0], "EV charger (48 A)");
+    let added = p["after"]["legs_a"]["L2"].as_f64().unwrap()
+        - p["before"]["legs_a"]["L2"].as_f64().unwrap();
+    assert!((45.0..48.5).contains(&added), "{added}");
+    let neutral_change = p["after"]["neutral_current_a"].as_f64().unwrap()
+        - p["before"]["neutral_current_a"].as_f64().unwrap();
+    assert!(neutral_change.abs() < 0.5, "{neutral_change}");
+    let loading = p["after"]["transformer_loading_pct"].as_f64().unwrap()
+        - p["before"]["transformer_loading_pct"].as_f64().unwrap();
+    assert!((43.0..47.0).contains(&loading), "{loading}");
+    let text = tapline(&["plan", &data("planned.json"), "--format", "text"], None);
+    assert!(String::from_utf8_lossy(&text.stdout).contains("(planned)"));
+    let bad = tapline(
+        &["plan", "-"],
+        Some(
+            r#"{"system":{"kind":"split-phase"},"loads":[{"connect":"L1-N","model":"resistive","watts":100,"planned":"yes"}]}"#,
+        ),
+    );
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(
+        String::from_utf8_lossy(&bad.stderr).contains("loads[0].planned"),
+        "{}",
+        String::from_utf8_lossy(&bad.stderr)
+    );
+}
+
 #[test]
 fn balance_prints_before_after_and_moves() {
     let out = tapline(&["balance", &data("panel.json")], None);

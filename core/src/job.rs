@@ -324,6 +324,10 @@ pub struct LoadFile {
     /// A motor's power factor while starting (locked rotor).
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub start_pf: Raw<f64>,
+    /// True for an appliance planned but not installed yet: kept apart from the job as found,
+    /// added only in the plan's "after".
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub planned: Raw<bool>,
     /// Keys this format does not define, kept so the file round-trips; validation refuses them.
     #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
     pub unknown: Unknown,

@@ -207,6 +207,10 @@ pub struct Load {
     pub(crate) multiwire: Option<String>,
     /// A motor's locked-rotor draw; `None` for other models.
     pub(crate) locked_rotor: Option<LockedRotor>,
+    /// Where the load stands in the job file's `loads` list.
+    pub(crate) file_index: usize,
+    /// True for an appliance planned but not installed yet.
+    pub(crate) planned: bool,
 }
 
 impl Load {
@@ -251,6 +255,16 @@ impl Load {
     /// The shared-neutral branch circuit this load is on, if any.
     pub fn multiwire(&self) -> Option<&str> {
         self.multiwire.as_deref()
+    }
+
+    /// Where the load stands in the job file's `loads` list (planned appliances are kept apart
+    /// from the job's loads, so this can differ from its index in [`crate::validated::Job::loads`]).
+    pub fn file_index(&self) -> usize {
+        self.file_index
+    }
+    /// True for an appliance planned but not installed yet.
+    pub fn is_planned(&self) -> bool {
+        self.planned
     }
 
     /// A motor's locked-rotor (starting) draw at rated voltage.

@@ -114,6 +114,7 @@ pub const LOAD_KEYS: &[&str] = &[
     "hp",
     "locked_rotor_multiple",
     "start_pf",
+    "planned",
 ];
 /// See [`JOB_KEYS`].
 pub const MULTIWIRE_KEYS: &[&str] = &[
@@ -171,16 +172,22 @@ pub fn validate(file: &JobFile) -> Result<Job, Vec<Problem>> {
     check_reading_sets(&mut c, file);
 
     match (system, service, loads) {
-        (Some(system), Some(service), Some(loads)) if c.problems.is_empty() => Ok(Job {
-            name,
-            system,
-            transformer: transformer.flatten(),
-            service,
-            neutral,
-            earth_ohms,
-            loads,
-            multiwire,
-        }),
+        (Some(system), Some(service), Some(loads)) if c.problems.is_empty() => {
+            // Planned appliances are kept apart: the job as found is what is installed.
+            let (planned, loads): (Vec<Load>, Vec<Load>) =
+                loads.into_iter().partition(|l| l.planned);
+            Ok(Job {
+                name,
+                system,
+                transformer: transformer.flatten(),
+                service,
+                neutral,
+                earth_ohms,
+                loads,
+                planned,
+                multiwire,
+            })
+        }
         _ => Err(c.problems),
     }
 }
@@ -859,6 +866,8 @@ fn validate_load(
         movable,
         slot,
         multiwire,
+        file_index: index,
+        planned: c.flag(&f.planned, &p("planned")).unwrap_or(false),
     })
 }
 

@@ -67,7 +67,10 @@ pub struct Job {
     pub(crate) neutral: NeutralState,
     /// Resistance of the earth path from the panel neutral bar to the transformer neutral, ohms.
     pub(crate) earth_ohms: Option<f64>,
+    /// The appliances as found on site.
     pub(crate) loads: Vec<Load>,
+    /// Appliances planned but not installed (`"planned": true`), kept apart from the job as found.
+    pub(crate) planned: Vec<Load>,
     pub(crate) multiwire: Vec<Multiwire>,
 }
 
@@ -96,6 +99,24 @@ impl Job {
     }
     pub fn multiwire(&self) -> &[Multiwire] {
         &self.multiwire
+    }
+    /// Appliances planned but not installed yet.
+    pub fn planned(&self) -> &[Load] {
+        &self.planned
+    }
+
+    /// The job once its planned appliances are added, in file order.
+    pub fn with_planned(&self) -> Job {
+        let mut loads: Vec<Load> = self.loads.iter().chain(&self.planned).cloned().collect();
+        loads.sort_by_key(|l| l.file_index);
+        for l in loads.iter_mut() {
+            l.planned = false;
+        }
+        Job {
+            loads,
+            planned: Vec::new(),
+            ..self.clone()
+        }
     }
 
     /// Indices of the loads on shared-neutral circuit `k` of [`Job::multiwire`].

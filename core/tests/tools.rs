@@ -756,3 +756,75 @@ fn a_retest_after_a_repair_is_compared_with_the_first_test() {
     let h = history(&j, &parsed);
     assert_eq!(h.sets[0].problems[0].message, SPLIT_PHASE_ONLY);
 }
+
+/// Solves a 3 × 3 linear system by Cramer's rule (the test's own second model).
+fn solve3(a: [[f64; 3]; 3], b: [f64; 3]) -> [f64; 3] {
+    let det = |m: [[f64; 3]; 3]| {
+        m[0][0] * (m[1][1] * m[2][2] - m[1][2] * m[2][1])
+            - m[0][1] * (m[1][0] * m[2][2] - m[1][2] * m[2][0])
+            + m[0][2] * (m[1][0] * m[2][1] - m[1][1] * m[2][0])
+    };
+    let d = det(a);
+    let mut x = [0.0; 3];
+    for (k, xk) in x.iter_mut().enumerate() {
+        let mut m = a;
+        for r in 0..3 {
+            m[r][k] = b[r];
+        }
+        *xk = det(m) / d;
+    }
+    x
+}
+
+/// A planned 7200 W, 240 V EV charger beside a 1200 W heater on L1 of a stiff 120/240 V source
+/// through 0.05 Ω hots and a 0.05 Ω neutral. Hand model (Kirchhoff's current law at the panel's
+/// L1, L2 and neutral bars, resistive loads as constant resistances R1 = 120²/1200 = 12 Ω and
+/// R_ev = 240²/7200 = 8 Ω): before, only the heater; after, the charger too. The line-to-line
+/// charger adds about 30 A to each hot and nothing to the neutral.
+#[test]
+fn a_planned_appliance_is_compared_before_and_after() {
+    let (rh, rn, r1, rev) = (0.05, 0.05, 12.0, 8.0);
+    let j = job(&json!({"system":{"kind":"split-phase"},
+        "service":{"hot":{"r_ohm":rh},"neutral":{"r_ohm":rn}},
+        "loads":[
+            {"name":"EV charger","connect":"L1-L2","model":"resistive","watts":7200,"planned":true},
+            {"name":"Heater","connect":"L1-N","model":"resistive","watts":1200}]}));
+    assert_eq!(
+        j.loads().len(),
+        1,
+        "the job as found has only what is installed"
+    );
+    let p = tapline_core::tools::plan::plan(&j).unwrap();
+    assert_eq!(p.planned, vec!["EV charger".to_string()]);
+
+    // Before: one loop, L1 to neutral: I = 120 / (rh + r1 + rn).
+    let i_before = 120.0 / (rh + r1 + rn);
+    close(p.before.legs_a["L1"], i_before, 1e-9);
+    close(p.before.neutral_current_a, i_before, 1e-9);
+
+    // After: unknown bar voltages a (L1), b (L2), n (neutral), against the source's neutral.
+    // (120 − a)/rh = (a − n)/r1 + (a − b)/rev; (−120 − b)/rh = (b − a)/rev; −n/rn + (a − n)/r1 = 0.
+    let g = |r: f64| 1.0 / r;
+    let [a, b, n] = solve3(
+        [
+            [g(rh) + g(r1) + g(rev), -g(rev), -g(r1)],
+            [-g(rev), g(rh) + g(rev), 0.0],
+            [g(r1), 0.0, -g(rn) - g(r1)],
+        ],
+        [120.0 * g(rh), -120.0 * g(rh), 0.0],
+    );
+    close(p.after.legs_a["L1"], (120.0 - a) / rh, 1e-9);
+    close(p.after.legs_a["L2"], (-120.0 - b).abs() / rh, 1e-9);
+    close(p.after.neutral_current_a, n.abs() / rn, 1e-9);
+    assert!(p.after.legs_a["L2"] > 29.0 && p.after.legs_a["L2"] < 30.0);
+    // The planned appliance is listed with no "before"; the heater with both.
+    let ev = p
+        .appliances
+        .iter()
+        .find(|x| x.name == "EV charger")
+        .unwrap();
+    assert!(ev.planned && ev.before.is_none() && ev.after_v.is_some());
+    let heater = p.appliances.iter().find(|x| x.name == "Heater").unwrap();
+    assert!(!heater.planned);
+    close(heater.after_v.unwrap(), a - n, 1e-9);
+}

@@ -1077,7 +1077,7 @@ pub struct Row {
     /// The circuit's id (its `circuit`, else its appliance's name).
     pub circuit: String,
     pub appliances: Vec<String>,
-    /// Indices of its loads in the job.
+    /// Indices of its loads in the job file's `loads` list.
     pub loads: Vec<usize>,
     /// Rated watts of every appliance on it, switched on or not.
     pub watts: f64,
@@ -1128,7 +1128,11 @@ pub fn schedule(job: &Job, layout: Layout) -> Vec<Row> {
                     .iter()
                     .map(|&i| job.loads()[i].name().to_string())
                     .collect(),
-                loads: c.loads.clone(),
+                loads: c
+                    .loads
+                    .iter()
+                    .map(|&i| job.loads()[i].file_index())
+                    .collect(),
                 watts: c.loads.iter().map(|&i| job.loads()[i].rated_w()).sum(),
                 multiwire: c.multiwire.clone(),
                 stays: !c.movable,
