@@ -88,7 +88,7 @@ fn side(r: &Report) -> Side {
             .collect(),
         neutral_current_a: r.neutral_current_a,
         transformer_loading_pct: r.transformer.as_ref().map(|t| t.loading_pct),
-        fault_at_service: r.fault_at_service.clone(),
+        fault_at_service: r.fault_at_service,
         worst_outcome: r.worst_outcome,
     }
 }
