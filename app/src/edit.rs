@@ -13,6 +13,7 @@ use tapline_core::validate::Problem;
 
 pub mod panel;
 pub mod readings;
+pub mod sizing;
 
 /// Reads a number typed by a user. Empty text is "absent"; a comma decimal separator is accepted;
 /// anything else that is not a number is kept as typed so validation can name the field.
@@ -314,11 +315,12 @@ pub fn transformer_text(job: &JobFile, field: &str) -> String {
     })
 }
 
-/// Which service conductor: the hots or the neutral.
+/// Which conductor run: the service hots, the service neutral, or load `i`'s branch circuit.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Run {
     Hot,
     Neutral,
+    Branch(usize),
 }
 
 impl Run {
@@ -326,19 +328,56 @@ impl Run {
         match self {
             Run::Hot => "hot",
             Run::Neutral => "neutral",
+            Run::Branch(_) => "branch",
+        }
+    }
+
+    /// The JSON path of the conductor in the job file.
+    pub fn path(self) -> String {
+        match self {
+            Run::Hot | Run::Neutral => format!("service.{}", self.key()),
+            Run::Branch(i) => format!("loads[{i}].branch"),
         }
     }
 }
 
 fn conductor(job: &JobFile, run: Run) -> Option<&ConductorFile> {
+    if let Run::Branch(i) = run {
+        return job.loads.given()?.get(i)?.given()?.branch.given();
+    }
     let s = job.service.given()?;
     match run {
         Run::Hot => s.hot.given(),
-        Run::Neutral => s.neutral.given(),
+        _ => s.neutral.given(),
     }
 }
 
-fn conductor_mut(job: &mut JobFile, run: Run) -> &mut ConductorFile {
+/// A branch circuit's conductor, made present (12 AWG copper, 15 m, as a typical 20 A branch)
+/// when the load has none. `None` when there is no such load.
+fn branch_mut(job: &mut JobFile, i: usize) -> Option<&mut ConductorFile> {
+    let Some(Raw::Given(load)) = loads_mut(job).get_mut(i) else {
+        return None;
+    };
+    if load.branch.given().is_none() {
+        load.branch = Raw::Given(ConductorFile {
+            material: Raw::Given("cu".to_string()),
+            size: Raw::Given(Value::String("12".to_string())),
+            length_m: Raw::Given(15.0),
+            ..ConductorFile::default()
+        });
+    }
+    match &mut load.branch {
+        Raw::Given(c) => Some(c),
+        _ => None,
+    }
+}
+
+/// The conductor made present with typical values; `None` only for a branch of a load that is
+/// not there.
+fn conductor_mut(job: &mut JobFile, run: Run) -> Option<&mut ConductorFile> {
+    if let Run::Branch(i) = run {
+        return branch_mut(job, i);
+    }
     if job.service.given().is_none() {
         job.service = Raw::Given(Default::default());
     }
@@ -347,7 +386,7 @@ fn conductor_mut(job: &mut JobFile, run: Run) -> &mut ConductorFile {
     };
     let slot = match run {
         Run::Hot => &mut s.hot,
-        Run::Neutral => &mut s.neutral,
+        _ => &mut s.neutral,
     };
     if slot.given().is_none() {
         *slot = Raw::Given(ConductorFile {
@@ -362,7 +401,7 @@ fn conductor_mut(job: &mut JobFile, run: Run) -> &mut ConductorFile {
     let Raw::Given(c) = slot else {
         unreachable!("set just above")
     };
-    c
+    Some(c)
 }
 
 /// True when the job gives this service conductor.
@@ -374,17 +413,23 @@ pub fn has_conductor(job: &JobFile, run: Run) -> bool {
 pub fn set_conductor_present(job: &mut JobFile, run: Run, on: bool) {
     if on {
         conductor_mut(job, run);
+    } else if let Run::Branch(i) = run {
+        if let Some(Raw::Given(load)) = loads_mut(job).get_mut(i) {
+            load.branch = Raw::Absent;
+        }
     } else if let Raw::Given(s) = &mut job.service {
         match run {
             Run::Hot => s.hot = Raw::Absent,
-            Run::Neutral => s.neutral = Raw::Absent,
+            _ => s.neutral = Raw::Absent,
         }
     }
 }
 
 /// Sets a conductor's material or size (text fields).
 pub fn set_conductor_text(job: &mut JobFile, run: Run, field: &str, text: &str) {
-    let c = conductor_mut(job, run);
+    let Some(c) = conductor_mut(job, run) else {
+        return;
+    };
     match field {
         "material" => c.material = Raw::Given(text.to_string()),
         "size" => c.size = Raw::Given(Value::String(text.to_string())),
@@ -409,7 +454,9 @@ pub fn conductor_text(job: &JobFile, run: Run, field: &str) -> String {
 
 /// Sets a conductor's one-way length in the chosen units; the job keeps one length field.
 pub fn set_length(job: &mut JobFile, run: Run, text: &str, units: Units) {
-    let c = conductor_mut(job, run);
+    let Some(c) = conductor_mut(job, run) else {
+        return;
+    };
     let v = number_from_text(text);
     match units {
         Units::Feet => {
@@ -442,7 +489,18 @@ pub fn length_text(job: &JobFile, run: Run, units: Units) -> String {
 
 /// The JSON path of a conductor's length field in the chosen units.
 pub fn length_path(run: Run, units: Units) -> String {
-    format!("service.{}.length_{}", run.key(), units.code())
+    format!("{}.length_{}", run.path(), units.code())
+}
+
+/// Marks load `i` as planned (not installed yet) or as found.
+pub fn set_planned(job: &mut JobFile, i: usize, planned: bool) {
+    if let Some(Raw::Given(load)) = loads_mut(job).get_mut(i) {
+        load.planned = if planned {
+            Raw::Given(true)
+        } else {
+            Raw::Absent
+        };
+    }
 }
 
 /// The neutral's state, ohms and earth-return text.

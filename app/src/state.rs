@@ -8,7 +8,9 @@ use tapline_core::job::{JobFile, Raw};
 use tapline_core::report::{analyze, Report};
 use tapline_core::tools::balance::{balance, schedule, Balance, Layout, Row};
 use tapline_core::tools::diagnose::{history, History};
+use tapline_core::tools::plan::{plan, Plan};
 use tapline_core::validate::{validate, Problem};
+use tapline_core::validated::Job;
 use tapline_core::whatif::{sweep, sweep_points, what_if, Sweep, WhatIf};
 
 /// Points in the app's neutral sweep plot.
@@ -56,6 +58,8 @@ pub struct AppState {
     pub deleted: RwSignal<Option<Entry>>,
     /// Messages from the last import.
     pub import_problems: RwSignal<Vec<String>>,
+    /// The draft validated: the one validation every result below derives from.
+    pub job: Memo<Result<Job, Vec<Problem>>>,
     pub problems: Memo<Vec<Problem>>,
     pub report: Memo<Option<Result<Report, String>>>,
     pub what_if: Memo<Option<Result<WhatIf, String>>>,
@@ -67,6 +71,8 @@ pub struct AppState {
     pub balance: Memo<Option<Balance>>,
     /// The panel schedule in position order, checked against the layout.
     pub schedule: Memo<Option<Vec<Row>>>,
+    /// The job as found beside the job with its planned appliances (none without planned ones).
+    pub plan: Memo<Option<Result<Plan, String>>>,
     /// The legs of the job's service (empty while the job has problems).
     pub legs: Memo<Vec<tapline_core::system::Leg>>,
     /// The job as it was before balancing moves were applied, for undo.
@@ -168,6 +174,15 @@ impl AppState {
             flipped,
             balance,
             schedule,
+            job: valid,
+            plan: Memo::new(move |_| {
+                valid.with(|v| {
+                    v.as_ref()
+                        .ok()
+                        .filter(|j| !j.planned().is_empty())
+                        .map(|j| plan(j).map_err(|e| e.to_string()))
+                })
+            }),
             legs: Memo::new(move |_| {
                 valid.with(|v| {
                     v.as_ref()

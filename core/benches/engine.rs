@@ -181,6 +181,27 @@ fn tools(c: &mut Criterion) {
     c.bench_function("diagnose from three readings", |b| {
         b.iter(|| tapline_core::tools::diagnose::diagnose(black_box(&readings)).unwrap())
     });
+    let run = tapline_core::tools::size::parse_run(
+        &json!({"version":1,"system":{"kind":"split-phase"},
+            "run":{"kind":"feeder","connect":"L1-N","amps":90,"power_factor":0.9,"length_ft":150,
+                   "material":"al","neutral_amps":30}})
+        .to_string(),
+    )
+    .unwrap();
+    c.bench_function("size one run, every standard size", |b| {
+        b.iter(|| tapline_core::tools::size::size(black_box(&run)))
+    });
+    let job = forty_load_job();
+    let motor = job
+        .loads()
+        .iter()
+        .find(|l| l.model() == tapline_core::loads::Model::Motor)
+        .expect("the 40-load job has motors")
+        .name()
+        .to_string();
+    c.bench_function("motor start, 40-load job", |b| {
+        b.iter(|| tapline_core::tools::start::start(black_box(&job), &motor, 4.0).unwrap())
+    });
 }
 
 fn benches(c: &mut Criterion) {

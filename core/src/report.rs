@@ -198,6 +198,9 @@ pub struct HarmonicLine {
 /// One appliance.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct LoadReport {
+    /// Its place in the job file's `loads` list (planned appliances are not in the report of the
+    /// job as found, so this can differ from its place here).
+    pub index: usize,
     pub name: String,
     pub connect: String,
     pub model: &'static str,
@@ -269,6 +272,7 @@ pub fn load_reports(job: &Job, net: &Network, sol: &Solution) -> Vec<LoadReport>
                 None => (Outcome::Off, Decider::Switch, "switched off".to_string()),
             };
             LoadReport {
+                index: load.file_index(),
                 name: load.name().to_string(),
                 connect: load.connection().label(),
                 model: load.model().code(),

@@ -1,10 +1,13 @@
 //! Loads: add from the library or custom, grouped by leg with per-leg totals, on/off per load.
 
+use super::runs::ConductorFields;
 use crate::components::{NumberField, SelectField, TextField};
 use crate::edit;
+use crate::edit::Run;
 use crate::state::AppState;
 use leptos::prelude::*;
 use tapline_core::library;
+use tapline_core::tools::start::{start, Start};
 
 const MODELS: [(&str, &str); 5] = [
     ("resistive", "Resistive (heater)"),
@@ -119,6 +122,8 @@ fn LoadRow(index: usize) -> impl IntoView {
         .map(|(v, l)| (v.to_string(), l.to_string()))
         .collect();
     let on = load.on.given().copied().unwrap_or(true);
+    let planned = load.planned.given().copied().unwrap_or(false);
+    let is_motor = load.model.given().map(String::as_str) == Some("motor");
     let path = move |field: &str| format!("loads[{index}].{field}");
     let problem = move |field: &'static str| {
         let p = path(field);
@@ -126,9 +131,10 @@ fn LoadRow(index: usize) -> impl IntoView {
     };
     let outcome = move || {
         state.report.with(|r| match r {
-            Some(Ok(rep)) => rep.loads.get(index).map(|l| {
-                view! { <span class="row-result"><crate::components::OutcomeBadge outcome=l.outcome /> " " {crate::format::volts(l.voltage_v)}</span> }
-            }),
+            Some(Ok(rep)) => match rep.loads.iter().find(|l| l.index == index) {
+                Some(l) => Some(view! { <span class="row-result"><crate::components::OutcomeBadge outcome=l.outcome /> " " {crate::format::volts(l.voltage_v)}</span> }.into_any()),
+                None => Some(view! { <span class="row-result" data-testid="load-planned-tag">"planned"</span> }.into_any()),
+            },
             _ => None,
         })
     };
@@ -159,7 +165,79 @@ fn LoadRow(index: usize) -> impl IntoView {
             </div>
             <TextField label="Shared-neutral circuit (blank if none)".into() initial=edit::text_of(&load.multiwire) problem=problem("multiwire")
                 on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "multiwire", &t)) testid="load-multiwire" />
+            <label class="check">
+                <input type="checkbox" prop:checked=planned data-testid="load-planned"
+                    on:change=move |ev| state.edit(|j| edit::set_planned(j, index, event_target_checked(&ev))) />
+                "Planned, not installed yet (shown on the results as what the addition changes)"
+            </label>
+            <details class="branch-run">
+                <summary>"Branch circuit"</summary>
+                <ConductorFields run=Run::Branch(index) title="Branch circuit to this appliance" toggle="Include its branch circuit (size and length)" />
+            </details>
+            {is_motor.then(|| view! { <StartPanel index=index /> })}
             <p class="field-error">{move || { let p = path("connect"); state.problem(&p).unwrap_or_default() }}</p>
         </li>
+    }
+}
+
+/// The dip at the instant this motor starts: every appliance's voltage before and during, visible
+/// flicker at the chosen starting rate, and whether the motor itself can start.
+#[component]
+fn StartPanel(index: usize) -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let per_hour = RwSignal::new("4".to_string());
+    let result = move || -> Result<Start, String> {
+        let rate = match edit::number_from_text(&per_hour.get()) {
+            tapline_core::job::Raw::Given(r) if (0.01..=3600.0).contains(&r) => r,
+            _ => return Err("Starts per hour: must be a number from 0.01 to 3600.".to_string()),
+        };
+        state.job.with(|j| {
+            let j = j
+                .as_ref()
+                .map_err(|_| "Fix the job's fields first.".to_string())?;
+            // A planned motor starts on the job with its planned appliances added.
+            let planned = j.planned().iter().find(|l| l.file_index() == index);
+            let (job, name) = match planned {
+                Some(l) => (j.with_planned(), l.name().to_string()),
+                None => {
+                    let l = j
+                        .loads()
+                        .iter()
+                        .find(|l| l.file_index() == index)
+                        .ok_or("Fix the job's fields first.")?;
+                    (j.clone(), l.name().to_string())
+                }
+            };
+            start(&job, &name, rate).map_err(|e| e.to_string())
+        })
+    };
+    let body = move || {
+        match &result() {
+            Err(e) => view! { <p class="problems" data-testid="start-problem">{e.clone()}</p> }.into_any(),
+            Ok(s) => view! {
+                <p data-testid="start-motor">{format!("{:.0} A locked rotor ({}); the motor gets {} at the instant of starting", s.locked_rotor_a, s.locked_rotor_basis, crate::format::volts(s.motor_v))}
+                    {s.starting_torque_pct.map(|t| format!(", {t:.0} % of full-load torque"))}
+                    <strong data-testid="start-can">{if s.can_start { ": it can start." } else { ": it may not start." }}</strong></p>
+                <ul class="dips">
+                    {s.appliances.iter().map(|d| view! {
+                        <li data-testid="start-dip" data-flicker=d.flicker_visible.to_string()>
+                            {format!("{}: {} → {}", d.name, crate::format::volts(d.before_v), crate::format::volts(d.during_v))}
+                            {d.dip_pct.map(|p| if p >= 0.0 { format!(" (dips {p:.1} %)") } else { format!(" (rises {:.1} %)", -p) })}
+                            {d.flicker_visible.then_some(" · lights flicker visibly")}
+                        </li>
+                    }).collect_view()}
+                </ul>
+                <p class="note">{format!("Flicker threshold {:.1} % at {} starts per hour ({}).", s.flicker_threshold_pct, s.starts_per_hour, s.flicker_source)}</p>
+                {s.notes.iter().map(|n| view! { <p class="note">{n.clone()}</p> }).collect_view()}
+            }
+            .into_any(),
+        }
+    };
+    view! {
+        <details class="start-panel" data-testid="start-panel">
+            <summary>"Start it: the dip when it starts"</summary>
+            <NumberField label="Starts per hour".into() initial="4".to_string() problem=Signal::derive(|| None::<String>) on_text=move |t: String| per_hour.set(t) testid="start-rate" />
+            {body}
+        </details>
     }
 }

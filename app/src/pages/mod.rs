@@ -7,5 +7,6 @@ mod loads;
 mod panel;
 mod readings;
 mod results;
+mod runs;
 mod service;
 mod whatif;

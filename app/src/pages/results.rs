@@ -62,7 +62,60 @@ pub fn ResultsTab() -> impl IntoView {
                 Some(Err(e)) => view! { <p class="problems" role="alert">{format!("No solution: {e}")}</p> }.into_any(),
                 Some(Ok(rep)) => view! { <ReportView report=rep.clone() /> }.into_any(),
             })}
+            <PlanSection />
         </div>
+    }
+}
+
+/// What the planned appliances change: the job as found and with them, side by side.
+#[component]
+fn PlanSection() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    move || {
+        state.plan.with(|p| match p {
+            None => ().into_any(),
+            Some(Err(e)) => view! { <p class="problems" data-testid="plan-problem">{format!("The planned additions do not solve: {e}")}</p> }.into_any(),
+            Some(Ok(p)) => {
+                let legs = |m: &std::collections::BTreeMap<String, f64>| {
+                    m.iter().map(|(k, v)| format!("{k} {}", format::amps(*v))).collect::<Vec<_>>().join(" · ")
+                };
+                let side = |title: &'static str, s: &tapline_core::tools::plan::Side, id: &'static str| {
+                    view! {
+                        <div class="side" data-testid=id>
+                            <h4>{title}</h4>
+                            <p>{legs(&s.legs_a)}</p>
+                            <p>"Neutral " <strong data-testid=format!("{id}-neutral")>{format::amps(s.neutral_current_a)}</strong></p>
+                            {s.transformer_loading_pct.map(|t| view! { <p>"Transformer " <strong data-testid=format!("{id}-loading")>{format!("{t:.0} %")}</strong> " of its rating"</p> })}
+                            {s.fault_at_service.map(|f| view! { <p>{format!("Fault at the panel {:.0} A line to line", f.line_to_line_a)}</p> })}
+                            <p>{s.below_nominal_pct.iter().map(|(k, v)| format!("{k} {} below nominal", format::pct(*v))).collect::<Vec<_>>().join(" · ")}</p>
+                        </div>
+                    }
+                };
+                view! {
+                    <section class="plan" data-testid="plan">
+                        <h3>{format!("Planned: {}", p.planned.join(", "))}</h3>
+                        <div class="side-by-side">
+                            {side("As found", &p.before, "plan-before")}
+                            {side("With the planned appliances", &p.after, "plan-after")}
+                        </div>
+                        <table class="legs">
+                            <thead><tr><th>"Appliance"</th><th>"As found"</th><th>"With them"</th></tr></thead>
+                            <tbody>
+                                {p.appliances.iter().map(|a| view! {
+                                    <tr data-testid="plan-appliance" data-planned=a.planned.to_string()>
+                                        <td>{a.name.clone()}</td>
+                                        <td>{if a.planned { "planned".to_string() } else { format::volts(a.before_v) }}</td>
+                                        <td>{format::volts(a.after_v)} " " <OutcomeBadge outcome=a.after /></td>
+                                    </tr>
+                                }).collect_view()}
+                            </tbody>
+                        </table>
+                        {p.notes.iter().map(|n| view! { <p class="note">{n.clone()}</p> }).collect_view()}
+                    </section>
+                }
+                .into_any()
+            }
+        })
     }
 }
 

@@ -1,5 +1,6 @@
 //! The service: system, transformer and service conductors.
 
+use super::runs::ConductorFields;
 use crate::components::{NumberField, SelectField, TextField};
 use crate::edit::{self, Preset, Run, Units};
 use crate::format;
@@ -10,19 +11,6 @@ fn options(items: &[(&str, &str)]) -> Vec<(String, String)> {
     items
         .iter()
         .map(|(v, l)| (v.to_string(), l.to_string()))
-        .collect()
-}
-
-fn size_options() -> Vec<(String, String)> {
-    tapline_core::conductors::Size::all()
-        .map(|s| {
-            let label = s.label();
-            let value = match s {
-                tapline_core::conductors::Size::Awg(r) => r.size.to_string(),
-                tapline_core::conductors::Size::Metric(r) => format!("{} mm2", r.mm2),
-            };
-            (value, label)
-        })
         .collect()
 }
 
@@ -39,36 +27,6 @@ pub fn ServiceTab() -> impl IntoView {
         .collect();
     let has_t = job.transformer.given().is_some();
     let problem = move |path: &'static str| Signal::derive(move || state.problem(path));
-
-    let conductor = move |run: Run, title: &'static str| {
-        let present = edit::has_conductor(&state.draft.get_untracked(), run);
-        let key = run.key();
-        let length_path = edit::length_path(run, units);
-        let lp = length_path.clone();
-        view! {
-            <fieldset>
-                <legend>{title}</legend>
-                <label class="check">
-                    <input type="checkbox" prop:checked=present data-testid=format!("{key}-present")
-                        on:change=move |ev| state.edit_structure(|j| edit::set_conductor_present(j, run, event_target_checked(&ev))) />
-                    {if run == Run::Hot { "Include service hot conductors" } else { "Give the neutral its own size (otherwise as the hots)" }}
-                </label>
-                <Show when=move || present>
-                    <SelectField label="Material".into() options=options(&[("al", "Aluminum"), ("cu", "Copper")])
-                        selected=edit::conductor_text(&state.draft.get_untracked(), run, "material")
-                        on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, "material", &v)) testid=format!("{key}-material") />
-                    <SelectField label="Size".into() options=size_options()
-                        selected=edit::conductor_text(&state.draft.get_untracked(), run, "size")
-                        on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, "size", &v)) testid=format!("{key}-size") />
-                    <NumberField label="One-way length".into() unit=units.code().to_string()
-                        initial=edit::length_text(&state.draft.get_untracked(), run, units)
-                        problem=Signal::derive({ let lp = lp.clone(); move || state.problem(&lp) })
-                        on_text=move |t: String| state.edit(|j| edit::set_length(j, run, &t, units)) testid=format!("{key}-length") />
-                    <p class="field-error">{let p = format!("service.{key}.size"); move || state.problem(&p).unwrap_or_default()}</p>
-                </Show>
-            </fieldset>
-        }
-    };
 
     let figures = move || {
         state.report.with(|r| match r {
@@ -127,8 +85,8 @@ pub fn ServiceTab() -> impl IntoView {
                     {figures}
                 </Show>
             </fieldset>
-            {conductor(Run::Hot, "Service hot conductors")}
-            {conductor(Run::Neutral, "Service neutral conductor")}
+            <ConductorFields run=Run::Hot title="Service hot conductors" toggle="Include service hot conductors" />
+            <ConductorFields run=Run::Neutral title="Service neutral conductor" toggle="Give the neutral its own size (otherwise as the hots)" />
             <MultiwireSection />
             <fieldset>
                 <legend>"Units"</legend>

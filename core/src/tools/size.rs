@@ -120,6 +120,8 @@ pub struct Run {
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Candidate {
     pub size: String,
+    /// The size as a job file spells it (`4/0`, `35 mm2`), to put the choice into a job.
+    pub code: String,
     pub drop_v: f64,
     pub drop_pct: f64,
     /// NEC Table 310.16 at the chosen column; `None` for metric sizes and sizes the table lacks.
@@ -396,6 +398,7 @@ pub fn size(run: &Run) -> Sizing {
             };
             Some(Candidate {
                 size: size.label(),
+                code: size.code(),
                 drop_v,
                 drop_pct: drop_v / run.circuit_v * 100.0,
                 ampacity_a,
@@ -431,4 +434,54 @@ pub fn size(run: &Run) -> Sizing {
         smallest,
         notes,
     }
+}
+
+/// What a run of the job carries, from the engine's report of it: the figures a sizing starts
+/// from.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize)]
+pub struct RunLoad {
+    /// The heavier hot's current, amperes.
+    pub amps: f64,
+    /// Real power over apparent power, lagging, in (0, 1].
+    pub power_factor: f64,
+    /// The neutral's current, for a run with a neutral, amperes.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub neutral_amps: Option<f64>,
+}
+
+/// The service's load from the job's report: the heavier leg's current, the neutral's, and the
+/// power factor Σ P / Σ V·I over the legs at the panel (Σ P the appliances' real power).
+pub fn service_load(report: &crate::report::Report) -> Option<RunLoad> {
+    let amps = report
+        .legs
+        .values()
+        .map(|l| l.current_a)
+        .fold(0.0, f64::max);
+    let apparent: f64 = report
+        .legs
+        .values()
+        .map(|l| l.volts_to_neutral.unwrap_or(0.0) * l.current_a)
+        .sum();
+    let real: f64 = report.loads.iter().map(|l| l.power_w).sum();
+    (amps > 0.0 && apparent > 0.0).then(|| RunLoad {
+        amps,
+        power_factor: (real / apparent).clamp(0.05, 1.0),
+        neutral_amps: Some(report.neutral_current_a),
+    })
+}
+
+/// One appliance's branch load, installed or planned, at its rating (a branch is sized for what
+/// the appliance draws when on): I = P / (pf · V_rated) and its power factor; `index` is its
+/// place in the job file's `loads` list.
+pub fn appliance_load(job: &crate::validated::Job, index: usize) -> Option<RunLoad> {
+    let l = job
+        .loads()
+        .iter()
+        .chain(job.planned())
+        .find(|l| l.file_index() == index)?;
+    Some(RunLoad {
+        amps: l.rated_current(),
+        power_factor: l.power_factor(),
+        neutral_amps: None,
+    })
 }

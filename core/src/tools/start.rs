@@ -9,8 +9,7 @@
 
 use crate::loads::{LockedRotorBasis, Model};
 use crate::network::Network;
-use crate::report::{load_reports, LoadReport};
-use crate::solve::{solve, SolveError};
+use crate::solve::{solve_fundamental, SolveError};
 use crate::validated::Job;
 use serde::Serialize;
 
@@ -122,34 +121,36 @@ pub fn start(job: &Job, name: &str, starts_per_hour: f64) -> Result<Start, Start
     if motor.model() != Model::Motor {
         return Err(StartError::NotAMotor(name.to_string()));
     }
-    // A moment before: the motor not yet on.
+    // A moment before: the motor not yet on. The dip is a fundamental-frequency event, so both
+    // instants are solved at the fundamental only (the harmonics' few tenths of a volt of rms do
+    // not move it), on one network built once.
     let mut before_net = Network::new(job);
+    let mut during_net = before_net.clone();
     before_net.loads[k].load.on = false;
-    let before_sol = solve(&before_net).map_err(StartError::Solve)?;
-    let before = load_reports(job, &before_net, &before_sol);
+    let before_sol = solve_fundamental(&before_net).map_err(StartError::Solve)?;
     // The instant of starting: the motor at locked rotor.
-    let mut during_net = Network::new(job);
     during_net.set_starting(Some(k));
-    let during_sol = solve(&during_net).map_err(StartError::Solve)?;
-    let during: Vec<LoadReport> = load_reports(job, &during_net, &during_sol);
+    let during_sol = solve_fundamental(&during_net).map_err(StartError::Solve)?;
+    let volts = |sol: &crate::solve::Solution, i: usize| sol.loads[i].terminal_v.map(|v| v.norm());
     let threshold = flicker_threshold_pct(starts_per_hour);
-    let appliances: Vec<Dip> = before
+    let appliances: Vec<Dip> = job
+        .loads()
         .iter()
-        .zip(&during)
         .enumerate()
         .filter(|(i, _)| *i != k)
-        .map(|(i, (b, d))| {
-            let dip = b.voltage_v.zip(d.voltage_v).map(|(x, y)| x - y);
-            let pct = dip.zip(b.voltage_v).map(|(dv, v)| dv / v * 100.0);
+        .map(|(i, load)| {
+            let (b, d) = (volts(&before_sol, i), volts(&during_sol, i));
+            let dip = b.zip(d).map(|(x, y)| x - y);
+            let pct = dip.zip(b).map(|(dv, v)| dv / v * 100.0);
             Dip {
-                name: b.name.clone(),
-                connect: b.connect.clone(),
-                before_v: b.voltage_v,
-                during_v: d.voltage_v,
+                name: load.name().to_string(),
+                connect: load.connection().label(),
+                before_v: b,
+                during_v: d,
                 dip_v: dip,
                 dip_pct: pct,
-                flicker_visible: job.loads()[i].model() == Model::Lamp
-                    && job.loads()[i].is_on()
+                flicker_visible: load.model() == Model::Lamp
+                    && load.is_on()
                     && pct.is_some_and(|p| p > threshold),
             }
         })

@@ -1,0 +1,165 @@
+//! Conductor runs: the fields of a service or branch run, and the sizing panel that lists every
+//! standard size side by side and puts the chosen one into the job with one tap.
+
+use crate::components::{NumberField, SelectField};
+use crate::edit::sizing::{form_for, run_file, SizingForm};
+use crate::edit::{self, Run};
+use crate::format;
+use crate::state::AppState;
+use leptos::prelude::*;
+use tapline_core::tools::size::{appliance_load, service_load, size, validate_run, Sizing};
+
+fn options(items: &[(&str, &str)]) -> Vec<(String, String)> {
+    items
+        .iter()
+        .map(|(v, l)| (v.to_string(), l.to_string()))
+        .collect()
+}
+
+fn size_options() -> Vec<(String, String)> {
+    tapline_core::conductors::Size::all()
+        .map(|s| (s.code(), s.label()))
+        .collect()
+}
+
+/// A run's material, size and one-way length, with a sizing panel beneath.
+#[component]
+pub fn ConductorFields(run: Run, title: &'static str, toggle: &'static str) -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let units = state.units();
+    let present = edit::has_conductor(&state.draft.get_untracked(), run);
+    let key = run.key();
+    let lp = edit::length_path(run, units);
+    let size_path = format!("{}.size", run.path());
+    view! {
+        <fieldset>
+            <legend>{title}</legend>
+            <label class="check">
+                <input type="checkbox" prop:checked=present data-testid=format!("{key}-present")
+                    on:change=move |ev| state.edit_structure(|j| edit::set_conductor_present(j, run, event_target_checked(&ev))) />
+                {toggle}
+            </label>
+            <Show when=move || present>
+                <SelectField label="Material".into() options=options(&[("al", "Aluminum"), ("cu", "Copper")])
+                    selected=edit::conductor_text(&state.draft.get_untracked(), run, "material")
+                    on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, "material", &v)) testid=format!("{key}-material") />
+                <SelectField label="Size".into() options=size_options()
+                    selected=edit::conductor_text(&state.draft.get_untracked(), run, "size")
+                    on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, "size", &v)) testid=format!("{key}-size") />
+                <NumberField label="One-way length".into() unit=units.code().to_string()
+                    initial=edit::length_text(&state.draft.get_untracked(), run, units)
+                    problem=Signal::derive({ let lp = lp.clone(); move || state.problem(&lp) })
+                    on_text=move |t: String| state.edit(|j| edit::set_length(j, run, &t, units)) testid=format!("{key}-length") />
+                <p class="field-error">{let p = size_path.clone(); move || state.problem(&p).unwrap_or_default()}</p>
+                {(run != Run::Neutral).then(|| view! { <SizingPanel run=run /> })}
+            </Show>
+        </fieldset>
+    }
+}
+
+/// Every standard size of the run side by side (drop at the load's power factor, NEC Table
+/// 310.16 ampacity), the smallest that meets both marked, each with a button that puts it into
+/// the job.
+#[component]
+pub fn SizingPanel(run: Run) -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let units = state.units();
+    let form = RwSignal::new(form_for(&state.draft.get_untracked(), run, units));
+    let metric = RwSignal::new(units == edit::Units::Metres);
+    // The engine's sizing of the run: its load from the engine (the service's legs from the
+    // report, an appliance at its rating), the rest from the form.
+    let sizing = move || -> Result<Sizing, Vec<String>> {
+        let load = match run {
+            Run::Branch(i) => state
+                .job
+                .with(|j| j.as_ref().ok().and_then(|j| appliance_load(j, i))),
+            _ => state.report.with(|r| match r {
+                Some(Ok(rep)) => service_load(rep),
+                _ => None,
+            }),
+        }
+        .ok_or_else(|| {
+            vec!["Fix the job's fields first: the run's load comes from the job.".to_string()]
+        })?;
+        let connect = match run {
+            Run::Branch(i) => state.draft.with(|d| {
+                edit::text_of(&edit::loads(d).get(i).cloned().unwrap_or_default().connect)
+            }),
+            _ => "L1-N".to_string(),
+        };
+        let file = state
+            .draft
+            .with(|d| run_file(d, run, &form.get(), load, &connect, units, metric.get()));
+        validate_run(&file)
+            .map(|r| size(&r))
+            .map_err(|ps| ps.iter().map(|p| p.message.clone()).collect())
+    };
+    let set = move |f: fn(&mut SizingForm, String)| move |t: String| form.update(|x| f(x, t));
+    let problem = move |field: &'static str| {
+        Signal::derive(move || {
+            sizing()
+                .err()
+                .and_then(|m| m.into_iter().find(|l| l.contains(field)))
+        })
+    };
+    let table = move || {
+        match &sizing() {
+            Err(lines) => view! { <ul class="problems" data-testid="sizing-problems">{lines.iter().map(|l| view! { <li>{l.clone()}</li> }).collect_view()}</ul> }.into_any(),
+            Ok(s) => {
+                let rows = s
+                    .candidates
+                    .iter()
+                    .map(|c| {
+                        let best = s.smallest.as_deref() == Some(c.size.as_str());
+                        let code = c.code.clone();
+                        let material = form.with_untracked(|f| f.material.clone());
+                        let meets = c.meets_drop && c.meets_ampacity != Some(false);
+                        view! {
+                            <tr class:best=best data-testid="sizing-row" data-size=c.code.clone() data-meets=meets.to_string()>
+                                <td>{c.size.clone()} {best.then_some(" ★")}</td>
+                                <td>{format!("{:.1} V · {:.1} %", c.drop_v, c.drop_pct)}</td>
+                                <td>{c.ampacity_a.map(|a| format!("{a:.0} A")).unwrap_or_else(|| "–".to_string())}</td>
+                                <td><button class="small" data-testid="sizing-use" on:click=move |_| {
+                                    let (code, material) = (code.clone(), material.clone());
+                                    state.edit_structure(|j| {
+                                        edit::set_conductor_text(j, run, "material", &material);
+                                        edit::set_conductor_text(j, run, "size", &code);
+                                    });
+                                }>"Use"</button></td>
+                            </tr>
+                        }
+                    })
+                    .collect_view();
+                view! {
+                    <p data-testid="sizing-summary">{format!("{} at power factor {:.2}, target {} % of {:.0} V. ", format::amps(s.amps), s.power_factor, s.target_pct, s.circuit_v)}
+                        <strong data-testid="sizing-smallest">{s.smallest.clone().map(|x| format!("Smallest that meets both: {x}.")).unwrap_or_else(|| "No standard size meets both.".to_string())}</strong></p>
+                    <table class="sizing" data-testid="sizing-table">
+                        <thead><tr><th>"Size"</th><th>"Drop"</th><th>"Ampacity"</th><th></th></tr></thead>
+                        <tbody>{rows}</tbody>
+                    </table>
+                    {s.notes.iter().map(|n| view! { <p class="note">{n.clone()}</p> }).collect_view()}
+                }
+                .into_any()
+            }
+        }
+    };
+    let f = form.get_untracked();
+    view! {
+        <details class="sizing-panel" data-testid="sizing-panel">
+            <summary>"Size this run for its drop"</summary>
+            <div class="two">
+                <NumberField label="One-way length".into() unit=units.code().to_string() initial=f.length problem=problem("length") on_text=set(|x, t| x.length = t) testid="sizing-length" />
+                <NumberField label="Target drop".into() unit="%".to_string() initial=f.target problem=problem("target") on_text=set(|x, t| x.target = t) testid="sizing-target" />
+            </div>
+            <div class="two">
+                <SelectField label="Material".into() options=options(&[("cu", "Copper"), ("al", "Aluminum")]) selected=f.material on_pick=set(|x, t| x.material = t) testid="sizing-material" />
+                <SelectField label="Ampacity column".into() options=options(&[("60", "60 °C"), ("75", "75 °C"), ("90", "90 °C")]) selected=f.column on_pick=set(|x, t| x.column = t) testid="sizing-column" />
+            </div>
+            <label class="check">
+                <input type="checkbox" prop:checked=metric.get_untracked() data-testid="sizing-metric" on:change=move |ev| metric.set(event_target_checked(&ev)) />
+                "Metric sizes (IEC 60228)"
+            </label>
+            {table}
+        </details>
+    }
+}
