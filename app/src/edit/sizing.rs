@@ -83,8 +83,8 @@ mod tests {
     use crate::edit::{add_custom, new_job, set_conductor_present, set_length};
     use tapline_core::tools::size::{size, validate_run};
 
-    /// Source: NEC Chapter 9 Table 9, copper in PVC conduit, ohms to neutral per 1000 ft (from
-    /// memory: 12 AWG 2.0, 10 AWG 1.2, 8 AWG 0.78) and VD ≈ 2·I·R·L for a two-wire run at unity
+    /// Source: NEC Chapter 9 Table 9, uncoated copper in PVC conduit, ohms to neutral per 1000 ft
+    /// (read: 12 AWG 2.0, 10 AWG 1.2, 8 AWG 0.78) and VD ≈ 2·I·R·L for a two-wire run at unity
     /// power factor (IEEE Std 141): 16 A over 100 ft drops 2 × 16 × 0.2 = 6.4 V (5.3 % of 120 V)
     /// on 12 AWG, 3.84 V (3.2 %) on 10 AWG and 2.50 V (2.1 %) on 8 AWG, so 8 AWG is the smallest
     /// within 3 %.
