@@ -23,15 +23,18 @@ pub fn App() -> impl IntoView {
     let state = AppState::new();
     provide_context(state);
     view! {
-        <header class="top">
-            <h1 data-testid="app-title">"Tapline"</h1>
-            <button class="caution-link" data-testid="open-cautions" on:click=move |_| state.screen.set(Screen::Cautions)>"⚠ Cautions"</button>
+        // Everything sits in a landmark (banner or main), so a screen reader can jump between them.
+        <header>
+            <div class="top">
+                <h1 data-testid="app-title">"Tapline"</h1>
+                <button class="caution-link" data-testid="open-cautions" on:click=move |_| state.screen.set(Screen::Cautions)>"⚠ Cautions"</button>
+            </div>
+            <p class="caution-line" data-testid="caution-line">"Live equipment can kill. Verify with a meter; work by qualified persons under local code."</p>
         </header>
-        <p class="caution-line" data-testid="caution-line">"Live equipment can kill. Verify with a meter; work by qualified persons under local code."</p>
-        <div class="banners">
-            {move || state.banners.get().into_iter().map(|b| view! { <p class="banner" role="alert" data-testid="banner">{b}</p> }).collect_view()}
-        </div>
         <main>
+            <div class="banners">
+                {move || state.banners.get().into_iter().map(|b| view! { <p class="banner" role="alert" data-testid="banner">{b}</p> }).collect_view()}
+            </div>
             {move || match state.screen.get() {
                 Screen::Jobs => view! { <JobsPage /> }.into_any(),
                 Screen::Job => view! { <JobPage /> }.into_any(),
