@@ -1,0 +1,62 @@
+// Storage faults at phone size: a corrupt stored job is set aside and reported while the others
+// load; a full storage refuses a save with a message in plain words and the previous saved
+// version survives; blocked storage still opens the demo and says that nothing is saved.
+import { after, before, describe, test } from 'node:test';
+import assert from 'node:assert/strict';
+import { openApp, phone, start } from './harness.mjs';
+
+let env;
+before(async () => { env = await start(); });
+after(async () => { await env?.browser.close(); env?.server.close(); });
+
+const jobKeys = (page) => page.evaluate(() => Object.keys(localStorage).filter((k) => k.startsWith('tapline.v1.job.')));
+
+describe('storage faults', () => {
+  test('a corrupt stored job is set aside untouched and reported; the others load', async () => {
+    const { context, page } = await phone(env.browser);
+    await openApp(page, env.url);
+    assert.equal((await jobKeys(page)).length, 1);
+    await page.evaluate(() => localStorage.setItem('tapline.v1.job.broken', '{"saved_ms": 1, "job": {not json'));
+    await page.reload();
+    await page.waitForSelector('[data-testid=banner]');
+    assert.match(await page.textContent('[data-testid=banner]'), /could not be read and was set aside as tapline\.v1\.aside\.broken/);
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 1);
+    assert.equal(await page.evaluate(() => localStorage.getItem('tapline.v1.aside.broken')), '{"saved_ms": 1, "job": {not json');
+    assert.equal(await page.evaluate(() => localStorage.getItem('tapline.v1.job.broken')), null);
+    await context.close();
+  });
+
+  test('with storage full a save is refused in plain words and the previous version survives', async () => {
+    const { context, page } = await phone(env.browser);
+    await openApp(page, env.url);
+    const [key] = await jobKeys(page);
+    const before = JSON.parse(await page.evaluate((k) => localStorage.getItem(k), key));
+    await page.click('[data-testid=open-job]');
+    await page.click('[data-testid=tab-service]');
+    await page.evaluate(() => {
+      Storage.prototype.setItem = function full() { throw new DOMException('The quota has been exceeded.', 'QuotaExceededError'); };
+    });
+    await page.fill('[data-testid=job-name]', 'Renamed while full');
+    await page.waitForSelector('[data-testid=banner]');
+    assert.match(await page.textContent('[data-testid=banner]'), /Could not save: .*Storage may be full; export jobs to keep them/);
+    const after = JSON.parse(await page.evaluate((k) => localStorage.getItem(k), key));
+    assert.equal(after.job.name, before.job.name);
+    await context.close();
+  });
+
+  test('with storage blocked the demo still opens and the app says nothing is saved', async () => {
+    const { context, page, seen } = await phone(env.browser);
+    await page.addInitScript(() => {
+      Object.defineProperty(window, 'localStorage', { get() { throw new DOMException('blocked', 'SecurityError'); } });
+    });
+    await openApp(page, env.url);
+    await page.waitForSelector('[data-testid=banner]');
+    assert.match(await page.textContent('[data-testid=banner]'), /not letting Tapline save \(private mode or storage blocked\)/);
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 1);
+    await page.click('[data-testid=open-job]');
+    await page.click('[data-testid=tab-results]');
+    await page.waitForSelector('[data-testid=results-tab]');
+    assert.deepEqual(seen.errors.filter((e) => !/blocked|SecurityError/.test(e)), []);
+    await context.close();
+  });
+});
