@@ -611,3 +611,54 @@ fn motor_starts_agree_with_ngspice() {
     std::fs::remove_dir_all(&dir).ok();
     println!("{cases} motor starts agree with ngspice; worst relative difference {worst:e}");
 }
+
+/// The engine beside ngspice on the same 60 generated networks in one run: the time per network
+/// of each (the engine's median over repeated solves; ngspice's batch run, its process start
+/// included, which is what a person calling it pays), their ratio, and the largest disagreement.
+/// A benchmark rather than a check: `scripts/versus.sh` runs it optimised and prints the figures.
+#[test]
+#[ignore = "a benchmark: scripts/versus.sh runs it optimised"]
+fn versus_ngspice() {
+    use std::time::Instant;
+    let dir = std::env::temp_dir().join(format!("tapline-versus-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let mut rng = Rng(0x7A91_1E5C_0FFE_E123);
+    let (mut engine_s, mut spice_s, mut worst) = (Vec::new(), Vec::new(), 0.0f64);
+    for case in 0..60 {
+        let job = generate(&mut rng, case, false);
+        let valid = tapline_core::load_job(&job.to_string()).unwrap().1;
+        let net = Network::new(&valid);
+        let mut runs: Vec<f64> = (0..101)
+            .map(|_| {
+                let t = Instant::now();
+                std::hint::black_box(solve(std::hint::black_box(&net)).unwrap());
+                t.elapsed().as_secs_f64()
+            })
+            .collect();
+        runs.sort_by(f64::total_cmp);
+        engine_s.push(runs[50]);
+        let points: Vec<Option<OperatingPoint>> = job["loads"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|_| None)
+            .collect();
+        let text = netlist(&job, 1, &points);
+        let t = Instant::now();
+        let spice = run_ngspice(&text, &dir, &format!("versus{case}"));
+        spice_s.push(t.elapsed().as_secs_f64());
+        worst = worst.max(compare(&job, &spice, None, case));
+    }
+    std::fs::remove_dir_all(&dir).ok();
+    let median = |v: &mut Vec<f64>| {
+        v.sort_by(f64::total_cmp);
+        v[v.len() / 2]
+    };
+    let (e, s) = (median(&mut engine_s), median(&mut spice_s));
+    println!(
+        "60 generated networks: engine {:.1} µs per network, ngspice {:.1} ms per network (batch run, process start included); ngspice/engine {:.0}×; largest disagreement {worst:.1e} (relative)",
+        e * 1e6,
+        s * 1e3,
+        s / e
+    );
+}
