@@ -75,8 +75,9 @@ pub struct AppState {
     pub plan: Memo<Option<Result<Plan, String>>>,
     /// The legs of the job's service (empty while the job has problems).
     pub legs: Memo<Vec<tapline_core::system::Leg>>,
-    /// The job as it was before balancing moves were applied, for undo.
-    pub before_moves: RwSignal<Option<JobFile>>,
+    /// The last edit that can be undone (balancing moves applied, an appliance removed): what it
+    /// did, in words, and the job as it was before.
+    pub undo: RwSignal<Option<(String, JobFile)>>,
 }
 
 /// Milliseconds since 1970, from the browser's clock.
@@ -190,7 +191,7 @@ impl AppState {
                         .unwrap_or_default()
                 })
             }),
-            before_moves: RwSignal::new(None),
+            undo: RwSignal::new(None),
         };
         state.load();
         state
@@ -249,7 +250,7 @@ impl AppState {
         };
         self.draft.set(entry.stored.job);
         self.open_id.set(Some(entry.id));
-        self.before_moves.set(None);
+        self.undo.set(None);
         self.structure.update(|s| *s += 1);
         self.tab.set(Tab::Results);
         self.screen.set(Screen::Job);
@@ -283,14 +284,31 @@ impl AppState {
 
     /// Applies the balancing moves to the job, keeping the job as it was for undo.
     pub fn apply_moves(&self, moves: &[tapline_core::tools::balance::Move]) {
-        self.before_moves.set(Some(self.draft.get_untracked()));
-        self.edit_structure(|j| edit::panel::apply_moves(j, moves));
+        self.undoable("Moves applied to the job.".to_string(), |j| {
+            edit::panel::apply_moves(j, moves)
+        });
     }
 
-    /// Puts the job back as it was before the moves were applied.
-    pub fn undo_moves(&self) {
-        if let Some(job) = self.before_moves.get_untracked() {
-            self.before_moves.set(None);
+    /// Removes appliance `i`, keeping the job as it was for undo.
+    pub fn remove_load(&self, i: usize) {
+        let name = self.draft.with_untracked(|d| {
+            edit::loads(d)
+                .get(i)
+                .map(|l| edit::text_of(&l.name))
+                .unwrap_or_default()
+        });
+        self.undoable(format!("Removed “{name}”."), |j| edit::remove_load(j, i));
+    }
+
+    fn undoable(&self, what: String, f: impl FnOnce(&mut JobFile)) {
+        self.undo.set(Some((what, self.draft.get_untracked())));
+        self.edit_structure(f);
+    }
+
+    /// Puts the job back as it was before the last undoable edit.
+    pub fn undo_edit(&self) {
+        if let Some((_, job)) = self.undo.get_untracked() {
+            self.undo.set(None);
             self.edit_structure(|j| *j = job);
         }
     }

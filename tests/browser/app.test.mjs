@@ -220,3 +220,28 @@ describe('offline', () => {
     await context.close();
   });
 });
+
+describe('entry on site', () => {
+  test('the job bar stays on screen, an empty search says so, and removing an appliance can be undone', async () => {
+    const { context, page, seen } = await phone(env.browser);
+    await openApp(page, env.url);
+    await page.click('[data-testid=open-job]');
+    await page.click('[data-testid=tab-loads]');
+    await page.fill('[data-testid=library-search]', 'zzz');
+    assert.match(await page.textContent('[data-testid=library-empty]'), /No appliance in the library matches/);
+    await page.fill('[data-testid=library-search]', '');
+    const names = async () => page.locator('[data-testid=load-name]').evaluateAll((els) => els.map((e) => e.value));
+    const before = await names();
+    // Scroll to the bottom: the tabs are still on screen.
+    await page.evaluate(() => window.scrollTo(0, document.body.scrollHeight));
+    const bar = await page.locator('[data-testid=job-bar]').boundingBox();
+    assert.ok(bar && bar.y >= -1 && bar.y < 5, `job bar at ${bar?.y}`);
+    await page.locator('[data-testid=remove-load]').last().click();
+    assert.equal((await names()).length, before.length - 1);
+    assert.match(await page.textContent('[data-testid=undo-edit-bar]'), /Removed “/);
+    await page.click('[data-testid=undo-edit]');
+    assert.deepEqual((await names()).sort(), [...before].sort());
+    assert.deepEqual(seen.errors, []);
+    await context.close();
+  });
+});

@@ -123,7 +123,7 @@ describe('field tools', () => {
     // Apply, undo, apply again.
     await page.click('[data-testid=apply-moves]');
     await page.waitForSelector('[data-testid=no-moves]');
-    await page.click('[data-testid=undo-moves]');
+    await page.click('[data-testid=undo-edit]');
     await page.waitForSelector('[data-testid=apply-moves]');
     assert.equal(parseFloat(await page.textContent('[data-testid=balance-before]')), before);
     await page.click('[data-testid=apply-moves]');

@@ -27,6 +27,9 @@ pub fn JobPage() -> impl IntoView {
     };
     view! {
         <section class="page" data-testid="job-page">
+            // The job's name and its tabs stay on screen while scrolling, so results are one tap
+            // away from anywhere in a long list.
+            <div class="job-bar" data-testid="job-bar">
             <div class="job-head">
                 <button data-testid="back-to-jobs" on:click=move |_| state.screen.set(Screen::Jobs)>"‹ Jobs"</button>
                 <h2 data-testid="job-title">{move || state.draft.with(|d| edit::text_of(&d.name))}</h2>
@@ -40,6 +43,13 @@ pub fn JobPage() -> impl IntoView {
                 {tab_button(Tab::Panel, "Panel", "tab-panel")}
                 {tab_button(Tab::Readings, "Readings", "tab-readings")}
             </nav>
+            </div>
+            <Show when=move || state.undo.with(|u| u.is_some())>
+                <div class="undo" data-testid="undo-edit-bar">
+                    {move || state.undo.with(|u| u.as_ref().map(|(what, _)| what.clone()).unwrap_or_default())}
+                    <button data-testid="undo-edit" on:click=move |_| state.undo_edit()>"Undo"</button>
+                </div>
+            </Show>
             {move || {
                 // Re-drawn when the tab or the job's structure changes, so fields start from the job.
                 state.structure.track();

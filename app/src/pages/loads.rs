@@ -24,7 +24,11 @@ pub fn LoadsTab() -> impl IntoView {
     let target = RwSignal::new("L1-N".to_string());
     let connects = state.draft.with_untracked(edit::connect_choices);
     let library_rows = move || {
-        library::search(&query.get())
+        let found = library::search(&query.get());
+        if found.is_empty() {
+            return view! { <li class="empty" data-testid="library-empty">"No appliance in the library matches. Add a custom load and give it its nameplate watts."</li> }.into_any();
+        }
+        found
             .into_iter()
             .map(|a| {
                 let label = format!("{} · {} W · {} V", a.name, a.watts, a.rated_v);
@@ -38,6 +42,7 @@ pub fn LoadsTab() -> impl IntoView {
                 }
             })
             .collect_view()
+            .into_any()
     };
     // Loads grouped by leg (or pair of legs), each group with its rated total and present current.
     let groups = move || {
@@ -147,7 +152,7 @@ fn LoadRow(index: usize) -> impl IntoView {
                     "On"
                 </label>
                 {outcome}
-                <button class="danger small" data-testid="remove-load" on:click=move |_| state.edit_structure(|j| edit::remove_load(j, index))>"Remove"</button>
+                <button class="danger small" data-testid="remove-load" on:click=move |_| state.remove_load(index)>"Remove"</button>
             </div>
             <TextField label="Name".into() initial=edit::text_of(&load.name) problem=problem("name")
                 on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "name", &t)) testid="load-name" />

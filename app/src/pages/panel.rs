@@ -290,13 +290,5 @@ fn Balancing() -> impl IntoView {
             })
         })
     };
-    view! {
-        {body}
-        <Show when=move || state.before_moves.with(|b| b.is_some())>
-            <div class="undo" data-testid="undo-moves-bar">
-                "Moves applied to the job."
-                <button data-testid="undo-moves" on:click=move |_| state.undo_moves()>"Undo"</button>
-            </div>
-        </Show>
-    }
+    body
 }
