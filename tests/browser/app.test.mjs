@@ -29,7 +29,7 @@ describe('the app shell', () => {
   test('fits 360 px with no sideways scrolling and touch targets of at least 44 px', async () => {
     const { context, page } = await phone(env.browser, { viewport: { width: 360, height: 740 } });
     await openApp(page, env.url);
-    for (const tab of [null, 'tab-service', 'tab-loads', 'tab-results', 'tab-whatif']) {
+    for (const tab of [null, 'tab-service', 'tab-loads', 'tab-results', 'tab-whatif', 'tab-panel', 'tab-readings']) {
       if (tab === null) {
         await page.click('[data-testid=open-job]');
       } else {
