@@ -297,7 +297,9 @@ impl AppState {
                 .map(|l| edit::text_of(&l.name))
                 .unwrap_or_default()
         });
-        self.undoable(format!("Removed “{name}”."), |j| edit::remove_load(j, i));
+        self.undoable(format!("Removed “{name}”."), |j| {
+            edit::remove_load(j, i)
+        });
     }
 
     fn undoable(&self, what: String, f: impl FnOnce(&mut JobFile)) {

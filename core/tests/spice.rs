@@ -324,6 +324,23 @@ fn netlist(job: &Value, h: u32, points: &[Option<OperatingPoint>]) -> String {
     n
 }
 
+/// A fresh directory for one test's netlists.
+fn scratch(name: &str) -> std::path::PathBuf {
+    let dir = std::env::temp_dir().join(format!("{name}-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+/// No operating points: every appliance of the netlist at its own rated impedance.
+fn linear(job: &Value) -> Vec<Option<OperatingPoint>> {
+    job["loads"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|_| None)
+        .collect()
+}
+
 fn run_ngspice(
     netlist: &str,
     dir: &std::path::Path,
@@ -369,19 +386,13 @@ fn rel(ours: Complex64, theirs: Complex64, floor: f64) -> f64 {
 /// beside loose and open neutrals and shared-neutral branches.
 #[test]
 fn engine_agrees_with_ngspice_on_generated_networks() {
-    let dir = std::env::temp_dir().join(format!("tapline-spice-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("tapline-spice");
     let mut rng = Rng(0x7A91_1E5C_0FFE_E123);
     let cases = 60;
     let mut worst: f64 = 0.0;
     for case in 0..cases {
         let job = generate(&mut rng, case, false);
-        let points: Vec<Option<OperatingPoint>> = job["loads"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|_| None)
-            .collect();
+        let points = linear(&job);
         let spice = run_ngspice(&netlist(&job, 1, &points), &dir, &format!("case{case}"));
         worst = worst.max(compare(&job, &spice, None, case));
     }
@@ -489,8 +500,7 @@ fn compare(
 /// (constant power) within 1e-6.
 #[test]
 fn harmonic_solves_agree_with_ngspice() {
-    let dir = std::env::temp_dir().join(format!("tapline-spice-h-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("tapline-spice-h");
     let mut rng = Rng(0x51DE_C0DE_2026_0001);
     let mut worst: f64 = 0.0;
     let mut runs = 0;
@@ -549,8 +559,7 @@ fn harmonic_solves_agree_with_ngspice() {
 /// within 1e-6 relative.
 #[test]
 fn motor_starts_agree_with_ngspice() {
-    let dir = std::env::temp_dir().join(format!("tapline-spice-start-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("tapline-spice-start");
     let mut rng = Rng(0x57A2_7ED0_2026_1202);
     let cases = 30;
     let mut worst: f64 = 0.0;
@@ -572,8 +581,7 @@ fn motor_starts_agree_with_ngspice() {
         motor["power_factor"] = json!(0.8);
         motor["locked_rotor_a"] = json!(lra);
         motor["start_pf"] = json!(spf);
-        let n = job["loads"].as_array().unwrap().len();
-        let mut points: Vec<Option<OperatingPoint>> = (0..n).map(|_| None).collect();
+        let mut points = linear(&job);
         points[0] = Some(OperatingPoint {
             v: Complex64::new(rated, 0.0),
             i: Complex64::from_polar(lra, -spf.acos()),
@@ -620,8 +628,7 @@ fn motor_starts_agree_with_ngspice() {
 #[ignore = "a benchmark: scripts/versus.sh runs it optimised"]
 fn versus_ngspice() {
     use std::time::Instant;
-    let dir = std::env::temp_dir().join(format!("tapline-versus-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("tapline-versus");
     let mut rng = Rng(0x7A91_1E5C_0FFE_E123);
     let (mut engine_s, mut spice_s, mut worst) = (Vec::new(), Vec::new(), 0.0f64);
     for case in 0..60 {
@@ -637,12 +644,7 @@ fn versus_ngspice() {
             .collect();
         runs.sort_by(f64::total_cmp);
         engine_s.push(runs[50]);
-        let points: Vec<Option<OperatingPoint>> = job["loads"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|_| None)
-            .collect();
+        let points = linear(&job);
         let text = netlist(&job, 1, &points);
         let t = Instant::now();
         let spice = run_ngspice(&text, &dir, &format!("versus{case}"));
