@@ -248,7 +248,11 @@ impl AppState {
         else {
             return;
         };
-        self.draft.set(entry.stored.job);
+        // A draft kept from before a reload comes back, problems and all.
+        let draft = storage::load_draft(&entry.id)
+            .filter(|d| *d != entry.stored.job)
+            .unwrap_or(entry.stored.job);
+        self.draft.set(draft);
         self.open_id.set(Some(entry.id));
         self.undo.set(None);
         self.structure.update(|s| *s += 1);
@@ -334,14 +338,20 @@ impl AppState {
         };
         let job = self.draft.get_untracked();
         if validate(&job).is_err() {
+            // Kept as typed, so a reload brings it back with its problems; the saved job stays
+            // the last valid version.
+            if let Err(e) = storage::save_draft(&id, &job) {
+                self.banner(e.to_string());
+            }
             return;
         }
         let stored = StoredJob {
             saved_ms: now_ms(),
             job,
         };
-        if let Err(e) = storage::save_job(&id, &stored) {
-            self.banner(e.to_string());
+        match storage::save_job(&id, &stored) {
+            Ok(()) => storage::clear_draft(&id),
+            Err(e) => self.banner(e.to_string()),
         }
         self.jobs.update(|jobs| {
             if let Some(e) = jobs.iter_mut().find(|e| e.id == id) {

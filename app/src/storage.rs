@@ -6,6 +6,9 @@
 //!   (the job is exactly what `tapline solve` reads);
 //! - `tapline.v1.aside.<id>`: a job item that could not be read (corrupt, or written by a newer
 //!   version), moved here untouched and reported, never deleted;
+//! - `tapline.v1.draft.<id>`: the job file as being edited, valid or not, kept on every
+//!   keystroke while it differs from the saved job (removed once a valid version is saved), so
+//!   nothing typed is lost on a reload; the saved job stays the last valid version;
 //! - `tapline.v1.settings`: `{"units": "ft" | "m", "cautions_seen": bool}`;
 //! - `tapline.v1.seeded`: `true` once the demo job has been offered, so deleting it sticks.
 //!
@@ -18,6 +21,7 @@ use tapline_core::job::{JobFile, Raw, JOB_VERSION};
 
 const JOB_PREFIX: &str = "tapline.v1.job.";
 const ASIDE_PREFIX: &str = "tapline.v1.aside.";
+const DRAFT_PREFIX: &str = "tapline.v1.draft.";
 const SETTINGS_KEY: &str = "tapline.v1.settings";
 const SEEDED_KEY: &str = "tapline.v1.seeded";
 
@@ -139,11 +143,33 @@ pub fn save_job(id: &str, stored: &StoredJob) -> Result<(), StorageError> {
         .map_err(|e| StorageError::WriteRefused(e.to_string()))
 }
 
-/// Deletes one job.
+/// Deletes one job and its draft.
 pub fn delete_job(id: &str) -> Result<(), StorageError> {
-    raw()?
-        .remove_item(&format!("{JOB_PREFIX}{id}"))
+    let s = raw()?;
+    let _ = s.remove_item(&format!("{DRAFT_PREFIX}{id}"));
+    s.remove_item(&format!("{JOB_PREFIX}{id}"))
         .map_err(|_| StorageError::WriteRefused("remove failed".to_string()))
+}
+
+/// Keeps the draft of job `id` as typed, valid or not.
+pub fn save_draft(id: &str, draft: &JobFile) -> Result<(), StorageError> {
+    raw()?;
+    LocalStorage::set(format!("{DRAFT_PREFIX}{id}"), draft)
+        .map_err(|e| StorageError::WriteRefused(e.to_string()))
+}
+
+/// The draft of job `id`, when one was kept (an unreadable draft counts as none: the saved job
+/// is still there).
+pub fn load_draft(id: &str) -> Option<JobFile> {
+    raw().ok()?;
+    LocalStorage::get(format!("{DRAFT_PREFIX}{id}")).ok()
+}
+
+/// Forgets the draft of job `id` (its valid version is saved).
+pub fn clear_draft(id: &str) {
+    if let Ok(s) = raw() {
+        let _ = s.remove_item(&format!("{DRAFT_PREFIX}{id}"));
+    }
 }
 
 /// Reads the settings (defaults when absent or unreadable).

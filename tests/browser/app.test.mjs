@@ -96,7 +96,7 @@ describe('jobs', () => {
     await context.close();
   });
 
-  test('a value written survives a reload; a bad value shows its field and the last good job stays saved', async () => {
+  test('a value written survives a reload; a bad value comes back as typed with its problem, and the last good job stays saved', async () => {
     const { context, page } = await phone(env.browser);
     await openApp(page, env.url);
     await page.click('[data-testid=open-job]');
@@ -110,9 +110,20 @@ describe('jobs', () => {
     await page.reload();
     await page.waitForSelector('[data-testid=job-card]');
     assert.match(await page.textContent('[data-testid=job-card]'), /9 Quarry Lane/);
+    // The saved job is the last valid version; the draft is kept beside it.
+    const saved = await page.evaluate(() => {
+      const key = Object.keys(localStorage).find((k) => k.startsWith('tapline.v1.job.'));
+      return JSON.parse(localStorage.getItem(key)).job.loads[0].watts;
+    });
+    assert.equal(saved, 1500);
     await page.click('[data-testid=open-job]');
     await page.click('[data-testid=tab-loads]');
-    assert.equal(await page.locator('[data-testid=load-watts]').first().inputValue(), '1500');
+    assert.equal(await page.locator('[data-testid=load-watts]').first().inputValue(), 'lots');
+    assert.match(await page.locator('.field.bad .field-error').first().textContent(), /must be a number from 0.1 to/);
+    // Fixed, it saves, and the draft is no longer needed.
+    await page.locator('[data-testid=load-watts]').first().fill('1200');
+    const drafts = await page.evaluate(() => Object.keys(localStorage).filter((k) => k.startsWith('tapline.v1.draft.')).length);
+    assert.equal(drafts, 0);
     await context.close();
   });
 
