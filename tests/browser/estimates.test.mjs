@@ -58,6 +58,9 @@ describe('estimates', () => {
     await row.locator('.branch-run > summary').click();
     await row.locator('[data-testid=branch-length]').fill('120');
     await row.locator('[data-testid=sizing-panel] summary').click();
+    // A bad length is named beside its field.
+    await row.locator('[data-testid=sizing-length]').fill('far');
+    assert.match(await row.locator('.sizing-panel .field.bad .field-error').textContent(), /must be a number/);
     await row.locator('[data-testid=sizing-length]').fill('120');
     await row.locator('[data-testid=sizing-table]').waitFor();
     const code = await row.locator('[data-testid=sizing-row].best').getAttribute('data-size');

@@ -8,6 +8,7 @@ use crate::format;
 use crate::state::AppState;
 use leptos::prelude::*;
 use tapline_core::tools::size::{appliance_load, service_load, size, validate_run, Sizing};
+use tapline_core::validate::Problem;
 
 fn options(items: &[(&str, &str)]) -> Vec<(String, String)> {
     items
@@ -68,7 +69,7 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
     let metric = RwSignal::new(units == edit::Units::Metres);
     // The engine's sizing of the run: its load from the engine (the service's legs from the
     // report, an appliance at its rating), the rest from the form.
-    let sizing = move || -> Result<Sizing, Vec<String>> {
+    let sizing = move || -> Result<Sizing, Vec<Problem>> {
         let load = match run {
             Run::Branch(i) => state
                 .job
@@ -79,7 +80,11 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
             }),
         }
         .ok_or_else(|| {
-            vec!["Fix the job's fields first: the run's load comes from the job.".to_string()]
+            vec![Problem {
+                path: String::new(),
+                message: "Fix the job's fields first: the run's load comes from the job."
+                    .to_string(),
+            }]
         })?;
         let connect = match run {
             Run::Branch(i) => state.draft.with(|d| {
@@ -90,21 +95,27 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
         let file = state
             .draft
             .with(|d| run_file(d, run, &form.get(), load, &connect, units, metric.get()));
-        validate_run(&file)
-            .map(|r| size(&r))
-            .map_err(|ps| ps.iter().map(|p| p.message.clone()).collect())
+        validate_run(&file).map(|r| size(&r))
     };
+    // The form's own fields show their problems beside them; the rest are listed under the form.
+    const BESIDE: [&str; 2] = ["run.length_", "run.target_pct"];
     let set = move |f: fn(&mut SizingForm, String)| move |t: String| form.update(|x| f(x, t));
-    let problem = move |field: &'static str| {
+    let problem = move |prefix: &'static str| {
         Signal::derive(move || {
             sizing()
                 .err()
-                .and_then(|m| m.into_iter().find(|l| l.contains(field)))
+                .and_then(|ps| ps.into_iter().find(|p| p.path.starts_with(prefix)))
+                .map(|p| p.message)
         })
     };
     let table = move || {
         match &sizing() {
-            Err(lines) => view! { <ul class="problems" data-testid="sizing-problems">{lines.iter().map(|l| view! { <li>{l.clone()}</li> }).collect_view()}</ul> }.into_any(),
+            Err(ps) => view! {
+                <ul class="problems" data-testid="sizing-problems">
+                    {ps.iter().filter(|p| !BESIDE.iter().any(|b| p.path.starts_with(b))).map(|p| view! { <li>{p.message.clone()}</li> }).collect_view()}
+                </ul>
+            }
+            .into_any(),
             Ok(s) => {
                 let rows = s
                     .candidates
@@ -148,8 +159,8 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
         <details class="sizing-panel" data-testid="sizing-panel">
             <summary>"Size this run for its drop"</summary>
             <div class="two">
-                <NumberField label="One-way length".into() unit=units.code().to_string() initial=f.length problem=problem("length") on_text=set(|x, t| x.length = t) testid="sizing-length" />
-                <NumberField label="Target drop".into() unit="%".to_string() initial=f.target problem=problem("target") on_text=set(|x, t| x.target = t) testid="sizing-target" />
+                <NumberField label="One-way length".into() unit=units.code().to_string() initial=f.length problem=problem(BESIDE[0]) on_text=set(|x, t| x.length = t) testid="sizing-length" />
+                <NumberField label="Target drop".into() unit="%".to_string() initial=f.target problem=problem(BESIDE[1]) on_text=set(|x, t| x.target = t) testid="sizing-target" />
             </div>
             <div class="two">
                 <SelectField label="Material".into() options=options(&[("cu", "Copper"), ("al", "Aluminum")]) selected=f.material on_pick=set(|x, t| x.material = t) testid="sizing-material" />
