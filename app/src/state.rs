@@ -73,8 +73,6 @@ pub struct AppState {
     pub schedule: Memo<Option<Vec<Row>>>,
     /// The job as found beside the job with its planned appliances (none without planned ones).
     pub plan: Memo<Option<Result<Plan, String>>>,
-    /// The legs of the job's service (empty while the job has problems).
-    pub legs: Memo<Vec<tapline_core::system::Leg>>,
     /// The last edit that can be undone (balancing moves applied, an appliance removed): what it
     /// did, in words, and the job as it was before.
     pub undo: RwSignal<Option<(String, JobFile)>>,
@@ -182,13 +180,6 @@ impl AppState {
                         .ok()
                         .filter(|j| !j.planned().is_empty())
                         .map(|j| plan(j).map_err(|e| e.to_string()))
-                })
-            }),
-            legs: Memo::new(move |_| {
-                valid.with(|v| {
-                    v.as_ref()
-                        .map(|j| j.system().legs().to_vec())
-                        .unwrap_or_default()
                 })
             }),
             undo: RwSignal::new(None),
@@ -307,8 +298,9 @@ impl AppState {
     }
 
     fn undoable(&self, what: String, f: impl FnOnce(&mut JobFile)) {
-        self.undo.set(Some((what, self.draft.get_untracked())));
+        let before = self.draft.get_untracked();
         self.edit_structure(f);
+        self.undo.set(Some((what, before)));
     }
 
     /// Puts the job back as it was before the last undoable edit.
@@ -322,6 +314,11 @@ impl AppState {
     /// Applies an edit to the draft and saves it if the result is valid. An invalid draft stays on
     /// screen with its field messages; the last valid version stays saved.
     pub fn edit(&self, f: impl FnOnce(&mut JobFile)) {
+        // Undo restores the job as it was before one edit: once anything else changes, that
+        // copy would throw the later change away, so it goes.
+        if self.undo.with_untracked(Option::is_some) {
+            self.undo.set(None);
+        }
         self.draft.update(f);
         self.save_draft();
     }
@@ -337,7 +334,8 @@ impl AppState {
             return;
         };
         let job = self.draft.get_untracked();
-        if validate(&job).is_err() {
+        // The draft's one validation, from the memo every result uses.
+        if self.job.with_untracked(Result::is_err) {
             // Kept as typed, so a reload brings it back with its problems; the saved job stays
             // the last valid version.
             if let Err(e) = storage::save_draft(&id, &job) {

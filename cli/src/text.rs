@@ -5,7 +5,7 @@ use crate::args::CAUTIONS;
 use tapline_core::report::Report;
 use tapline_core::tools::balance::Balance;
 use tapline_core::tools::diagnose::{Diagnosis, History};
-use tapline_core::tools::plan::Plan;
+use tapline_core::tools::plan::{Plan, Side};
 use tapline_core::tools::size::Sizing;
 use tapline_core::tools::start::Start;
 use tapline_core::whatif::WhatIf;
@@ -190,32 +190,32 @@ pub fn balance(b: &Balance) -> String {
 
 /// A plan: the job as found and with its planned appliances.
 pub fn plan(p: &Plan) -> String {
-    let legs = |m: &std::collections::BTreeMap<String, f64>| {
-        m.iter()
+    let side = |title: &str, x: &Side| {
+        let legs: Vec<String> = x
+            .legs_a
+            .iter()
             .map(|(k, v)| format!("{k} {v:.1} A"))
-            .collect::<Vec<_>>()
-            .join(", ")
+            .collect();
+        let loading = x
+            .transformer_loading_pct
+            .map(|t| format!(", transformer {t:.0} % loaded"))
+            .unwrap_or_default();
+        format!(
+            "  {title}: {}, neutral {:.1} A{loading}\n",
+            legs.join(", "),
+            x.neutral_current_a
+        )
     };
     let mut s = format!(
-        "Planned: {}\n  As found: {}, neutral {:.1} A{}\n  With them: {}, neutral {:.1} A{}\n",
+        "Planned: {}\n",
         if p.planned.is_empty() {
             "nothing".to_string()
         } else {
             p.planned.join(", ")
-        },
-        legs(&p.before.legs_a),
-        p.before.neutral_current_a,
-        p.before
-            .transformer_loading_pct
-            .map(|t| format!(", transformer {t:.0} % loaded"))
-            .unwrap_or_default(),
-        legs(&p.after.legs_a),
-        p.after.neutral_current_a,
-        p.after
-            .transformer_loading_pct
-            .map(|t| format!(", transformer {t:.0} % loaded"))
-            .unwrap_or_default(),
+        }
     );
+    s.push_str(&side("As found", &p.before));
+    s.push_str(&side("With them", &p.after));
     for a in &p.appliances {
         s.push_str(&format!(
             "  {:<24} {} -> {} {}\n",

@@ -333,7 +333,6 @@ pub struct LoadFile {
     pub unknown: Unknown,
 }
 
-/// Why a text could not be read as a job at all (before any field is looked at).
 /// The meters' resolution.
 #[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
 #[serde(default)]
@@ -365,6 +364,7 @@ pub struct ReadingFile {
     pub unknown: Unknown,
 }
 
+/// Why a text could not be read as a job at all (before any field is looked at).
 #[derive(Clone, Debug, PartialEq)]
 pub struct ParseError {
     pub message: String,

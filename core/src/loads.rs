@@ -262,10 +262,6 @@ impl Load {
     pub fn file_index(&self) -> usize {
         self.file_index
     }
-    /// True for an appliance planned but not installed yet.
-    pub fn is_planned(&self) -> bool {
-        self.planned
-    }
 
     /// A motor's locked-rotor (starting) draw at rated voltage.
     pub fn locked_rotor(&self) -> Option<LockedRotor> {

@@ -107,16 +107,13 @@ impl Job {
 
     /// The job once its planned appliances are added, in file order.
     pub fn with_planned(&self) -> Job {
-        let mut loads: Vec<Load> = self.loads.iter().chain(&self.planned).cloned().collect();
-        loads.sort_by_key(|l| l.file_index);
-        for l in loads.iter_mut() {
+        let mut job = self.clone();
+        job.loads.append(&mut job.planned);
+        job.loads.sort_by_key(|l| l.file_index);
+        for l in job.loads.iter_mut() {
             l.planned = false;
         }
-        Job {
-            loads,
-            planned: Vec::new(),
-            ..self.clone()
-        }
+        job
     }
 
     /// Indices of the loads on shared-neutral circuit `k` of [`Job::multiwire`].

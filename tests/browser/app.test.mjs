@@ -252,6 +252,11 @@ describe('entry on site', () => {
     assert.match(await page.textContent('[data-testid=undo-edit-bar]'), /Removed “/);
     await page.click('[data-testid=undo-edit]');
     assert.deepEqual((await names()).sort(), [...before].sort());
+    // A later edit ends the undo: undoing then would throw the later edit away.
+    await page.locator('[data-testid=remove-load]').last().click();
+    await page.locator('[data-testid=load-name]').first().fill('Kept name');
+    assert.equal(await page.locator('[data-testid=undo-edit-bar]').count(), 0);
+    assert.equal((await names()).length, before.length - 1);
     assert.deepEqual(seen.errors, []);
     await context.close();
   });

@@ -53,6 +53,14 @@ pub fn TextField(
     }
 }
 
+/// (value, label) pairs for a [`SelectField`] from a fixed table.
+pub fn choices(items: &[(&str, &str)]) -> Vec<(String, String)> {
+    items
+        .iter()
+        .map(|(v, l)| (v.to_string(), l.to_string()))
+        .collect()
+}
+
 /// A labelled select of (value, label) options.
 #[component]
 pub fn SelectField(

@@ -4,6 +4,6 @@ mod fields;
 mod plot;
 mod result;
 
-pub use fields::{NumberField, SelectField, TextField};
+pub use fields::{choices, NumberField, SelectField, TextField};
 pub use plot::SweepPlot;
 pub use result::{CautionList, OutcomeBadge};

@@ -30,19 +30,19 @@ pub fn JobPage() -> impl IntoView {
             // The job's name and its tabs stay on screen while scrolling, so results are one tap
             // away from anywhere in a long list.
             <div class="job-bar" data-testid="job-bar">
-            <div class="job-head">
-                <button data-testid="back-to-jobs" on:click=move |_| state.screen.set(Screen::Jobs)>"‹ Jobs"</button>
-                <h2 data-testid="job-title">{move || state.draft.with(|d| edit::text_of(&d.name))}</h2>
-                <button data-testid="export-open-job" on:click=export>"Export"</button>
-            </div>
-            <nav class="tabs">
-                {tab_button(Tab::Service, "Service", "tab-service")}
-                {tab_button(Tab::Loads, "Loads", "tab-loads")}
-                {tab_button(Tab::Results, "Results", "tab-results")}
-                {tab_button(Tab::WhatIf, "What-if", "tab-whatif")}
-                {tab_button(Tab::Panel, "Panel", "tab-panel")}
-                {tab_button(Tab::Readings, "Readings", "tab-readings")}
-            </nav>
+                <div class="job-head">
+                    <button data-testid="back-to-jobs" on:click=move |_| state.screen.set(Screen::Jobs)>"‹ Jobs"</button>
+                    <h2 data-testid="job-title">{move || state.draft.with(|d| edit::text_of(&d.name))}</h2>
+                    <button data-testid="export-open-job" on:click=export>"Export"</button>
+                </div>
+                <nav class="tabs">
+                    {tab_button(Tab::Service, "Service", "tab-service")}
+                    {tab_button(Tab::Loads, "Loads", "tab-loads")}
+                    {tab_button(Tab::Results, "Results", "tab-results")}
+                    {tab_button(Tab::WhatIf, "What-if", "tab-whatif")}
+                    {tab_button(Tab::Panel, "Panel", "tab-panel")}
+                    {tab_button(Tab::Readings, "Readings", "tab-readings")}
+                </nav>
             </div>
             <Show when=move || state.undo.with(|u| u.is_some())>
                 <div class="undo" data-testid="undo-edit-bar">

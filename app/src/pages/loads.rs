@@ -122,10 +122,7 @@ fn LoadRow(index: usize) -> impl IntoView {
         .draft
         .with_untracked(|d| edit::loads(d).get(index).cloned().unwrap_or_default());
     let connects = state.draft.with_untracked(edit::connect_choices);
-    let models: Vec<(String, String)> = MODELS
-        .iter()
-        .map(|(v, l)| (v.to_string(), l.to_string()))
-        .collect();
+    let models = crate::components::choices(&MODELS);
     let on = load.on.given().copied().unwrap_or(true);
     let planned = load.planned.given().copied().unwrap_or(false);
     let is_motor = load.model.given().map(String::as_str) == Some("motor");
@@ -201,19 +198,18 @@ fn StartPanel(index: usize) -> impl IntoView {
                 .as_ref()
                 .map_err(|_| "Fix the job's fields first.".to_string())?;
             // A planned motor starts on the job with its planned appliances added.
-            let planned = j.planned().iter().find(|l| l.file_index() == index);
-            let (job, name) = match planned {
-                Some(l) => (j.with_planned(), l.name().to_string()),
+            match j.planned().iter().find(|l| l.file_index() == index) {
+                Some(l) => start(&j.with_planned(), l.name(), rate),
                 None => {
                     let l = j
                         .loads()
                         .iter()
                         .find(|l| l.file_index() == index)
                         .ok_or("Fix the job's fields first.")?;
-                    (j.clone(), l.name().to_string())
+                    start(j, l.name(), rate)
                 }
-            };
-            start(&job, &name, rate).map_err(|e| e.to_string())
+            }
+            .map_err(|e| e.to_string())
         })
     };
     let body = move || {

@@ -193,9 +193,10 @@ fn AddCircuit() -> impl IntoView {
         } else {
             Layout::Standard
         };
-        let legs = state.legs.get();
-        p.filter(|_| !legs.is_empty())
-            .map(|p| layout.leg_of_slot(p, &legs).name())
+        state.job.with(|j| {
+            let legs = j.as_ref().ok()?.system().legs();
+            p.map(|p| layout.leg_of_slot(p, legs).name())
+        })
     };
     let position_problem = Signal::derive(move || {
         (!position.get().trim().is_empty() && parsed().0.is_none())

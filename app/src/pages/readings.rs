@@ -5,17 +5,7 @@ use crate::components::{CautionList, NumberField, SelectField, TextField};
 use crate::edit::readings::{self as rd, ReadingEdit};
 use crate::state::{taken_now, AppState};
 use leptos::prelude::*;
-use tapline_core::tools::diagnose::{SetOutcome, Verdict};
-
-fn verdict_word(v: Verdict) -> &'static str {
-    match v {
-        Verdict::Healthy => "healthy",
-        Verdict::Suspect => "suspect",
-        Verdict::Dangerous => "dangerous",
-        Verdict::Inconclusive => "inconclusive",
-        Verdict::NotPhysical => "not_physical",
-    }
-}
+use tapline_core::tools::diagnose::SetOutcome;
 
 #[component]
 pub fn ReadingsTab() -> impl IntoView {
@@ -98,10 +88,10 @@ fn ReadingSet(set: usize) -> impl IntoView {
 fn set_result(o: &SetOutcome) -> AnyView {
     match &o.diagnosis {
         Some(d) => {
-            let word = verdict_word(d.verdict);
+            let code = d.verdict.code();
             view! {
-                <div class=format!("verdict verdict-{word}") data-testid="diagnosis" data-verdict=word>
-                    <p class="big-figure">{word.replace('_', " ").to_uppercase()}</p>
+                <div class=format!("verdict verdict-{code}") data-testid="diagnosis" data-verdict=code>
+                    <p class="big-figure">{d.verdict.word().to_uppercase()}</p>
                     <p>"Neutral " <strong data-testid="neutral-ohms-result">{format!("{:.3} Ω", d.neutral_ohms)}</strong>
                         {format!(" ± {:.3} Ω", d.neutral_ohms_uncertainty)}
                         " · each hot " {format!("{:.3} Ω ± {:.3} Ω", d.hot_ohms, d.hot_ohms_uncertainty)}</p>

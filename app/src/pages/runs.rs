@@ -1,7 +1,7 @@
 //! Conductor runs: the fields of a service or branch run, and the sizing panel that lists every
 //! standard size side by side and puts the chosen one into the job with one tap.
 
-use crate::components::{NumberField, SelectField};
+use crate::components::{choices, NumberField, SelectField};
 use crate::edit::sizing::{form_for, run_file, SizingForm};
 use crate::edit::{self, Run};
 use crate::format;
@@ -9,13 +9,6 @@ use crate::state::AppState;
 use leptos::prelude::*;
 use tapline_core::tools::size::{appliance_load, service_load, size, validate_run, Sizing};
 use tapline_core::validate::Problem;
-
-fn options(items: &[(&str, &str)]) -> Vec<(String, String)> {
-    items
-        .iter()
-        .map(|(v, l)| (v.to_string(), l.to_string()))
-        .collect()
-}
 
 fn size_options() -> Vec<(String, String)> {
     tapline_core::conductors::Size::all()
@@ -41,7 +34,7 @@ pub fn ConductorFields(run: Run, title: &'static str, toggle: &'static str) -> i
                 {toggle}
             </label>
             <Show when=move || present>
-                <SelectField label="Material".into() options=options(&[("al", "Aluminum"), ("cu", "Copper")])
+                <SelectField label="Material".into() options=choices(&[("al", "Aluminum"), ("cu", "Copper")])
                     selected=edit::conductor_text(&state.draft.get_untracked(), run, "material")
                     on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, "material", &v)) testid=format!("{key}-material") />
                 <SelectField label="Size".into() options=size_options()
@@ -69,7 +62,7 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
     let metric = RwSignal::new(units == edit::Units::Metres);
     // The engine's sizing of the run: its load from the engine (the service's legs from the
     // report, an appliance at its rating), the rest from the form.
-    let sizing = move || -> Result<Sizing, Vec<Problem>> {
+    let sizing = Memo::new(move |_| -> Result<Sizing, Vec<Problem>> {
         let load = match run {
             Run::Branch(i) => state
                 .job
@@ -96,20 +89,23 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
             .draft
             .with(|d| run_file(d, run, &form.get(), load, &connect, units, metric.get()));
         validate_run(&file).map(|r| size(&r))
-    };
+    });
     // The form's own fields show their problems beside them; the rest are listed under the form.
     const BESIDE: [&str; 2] = ["run.length_", "run.target_pct"];
     let set = move |f: fn(&mut SizingForm, String)| move |t: String| form.update(|x| f(x, t));
     let problem = move |prefix: &'static str| {
         Signal::derive(move || {
-            sizing()
-                .err()
-                .and_then(|ps| ps.into_iter().find(|p| p.path.starts_with(prefix)))
-                .map(|p| p.message)
+            sizing.with(|s| {
+                s.as_ref()
+                    .err()?
+                    .iter()
+                    .find(|p| p.path.starts_with(prefix))
+                    .map(|p| p.message.clone())
+            })
         })
     };
     let table = move || {
-        match &sizing() {
+        sizing.with(|s| match s {
             Err(ps) => view! {
                 <ul class="problems" data-testid="sizing-problems">
                     {ps.iter().filter(|p| !BESIDE.iter().any(|b| p.path.starts_with(b))).map(|p| view! { <li>{p.message.clone()}</li> }).collect_view()}
@@ -152,7 +148,7 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
                 }
                 .into_any()
             }
-        }
+        })
     };
     let f = form.get_untracked();
     view! {
@@ -163,8 +159,8 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
                 <NumberField label="Target drop".into() unit="%".to_string() initial=f.target problem=problem(BESIDE[1]) on_text=set(|x, t| x.target = t) testid="sizing-target" />
             </div>
             <div class="two">
-                <SelectField label="Material".into() options=options(&[("cu", "Copper"), ("al", "Aluminum")]) selected=f.material on_pick=set(|x, t| x.material = t) testid="sizing-material" />
-                <SelectField label="Ampacity column".into() options=options(&[("60", "60 °C"), ("75", "75 °C"), ("90", "90 °C")]) selected=f.column on_pick=set(|x, t| x.column = t) testid="sizing-column" />
+                <SelectField label="Material".into() options=choices(&[("cu", "Copper"), ("al", "Aluminum")]) selected=f.material on_pick=set(|x, t| x.material = t) testid="sizing-material" />
+                <SelectField label="Ampacity column".into() options=choices(&[("60", "60 °C"), ("75", "75 °C"), ("90", "90 °C")]) selected=f.column on_pick=set(|x, t| x.column = t) testid="sizing-column" />
             </div>
             <label class="check">
                 <input type="checkbox" prop:checked=metric.get_untracked() data-testid="sizing-metric" on:change=move |ev| metric.set(event_target_checked(&ev)) />

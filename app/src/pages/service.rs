@@ -1,18 +1,11 @@
 //! The service: system, transformer and service conductors.
 
 use super::runs::ConductorFields;
-use crate::components::{NumberField, SelectField, TextField};
+use crate::components::{choices, NumberField, SelectField, TextField};
 use crate::edit::{self, Preset, Run, Units};
 use crate::format;
 use crate::state::AppState;
 use leptos::prelude::*;
-
-fn options(items: &[(&str, &str)]) -> Vec<(String, String)> {
-    items
-        .iter()
-        .map(|(v, l)| (v.to_string(), l.to_string()))
-        .collect()
-}
 
 #[component]
 pub fn ServiceTab() -> impl IntoView {
@@ -90,7 +83,7 @@ pub fn ServiceTab() -> impl IntoView {
             <MultiwireSection />
             <fieldset>
                 <legend>"Units"</legend>
-                <SelectField label="Lengths in".into() options=options(&[("ft", "feet"), ("m", "metres")]) selected=units.code().to_string()
+                <SelectField label="Lengths in".into() options=choices(&[("ft", "feet"), ("m", "metres")]) selected=units.code().to_string()
                     on_pick=move |v: String| state.set_units(Units::parse(&v)) testid="units" />
             </fieldset>
         </div>
@@ -121,7 +114,7 @@ fn MultiwireSection() -> impl IntoView {
                     <TextField label="Circuit id (loads name it)".into() initial=edit::text_of(&m.id) problem=p("id")
                         on_text=move |t: String| state.edit(|j| edit::set_multiwire_field(j, i, "id", &t)) testid="multiwire-id" />
                     <div class="two">
-                        <SelectField label="Material".into() options=options(&[("cu", "Copper"), ("al", "Aluminum")]) selected=edit::text_of(&m.material)
+                        <SelectField label="Material".into() options=choices(&[("cu", "Copper"), ("al", "Aluminum")]) selected=edit::text_of(&m.material)
                             on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, "material", &v)) testid="multiwire-material" />
                         <SelectField label="Neutral size".into() options=sizes selected=size
                             on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, "size", &v)) testid="multiwire-size" />

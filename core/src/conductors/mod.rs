@@ -120,7 +120,6 @@ impl Size {
         AWG_TABLE.iter().find(|r| r.size == core).map(Size::Awg)
     }
 
-    /// The label shown to a user: `12 AWG`, `4/0 AWG`, `250 kcmil`, `16 mm²`.
     /// The spelling job files use for it: `12`, `4/0`, `250`, `35 mm2`.
     pub fn code(self) -> String {
         match self {
@@ -129,6 +128,7 @@ impl Size {
         }
     }
 
+    /// The label shown to a user: `12 AWG`, `4/0 AWG`, `250 kcmil`, `16 mm²`.
     pub fn label(self) -> String {
         match self {
             Size::Awg(r) if r.cmil >= 250_000.0 => format!("{} kcmil", r.size),

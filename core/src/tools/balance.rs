@@ -873,7 +873,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
         }
     }
     let after = currents(job, &panel, &after_legs, basis);
-    let moves: Vec<Move> = cs
+    let mut moves: Vec<Move> = cs
         .iter()
         .zip(now.iter().zip(&after_legs))
         .filter(|(_, (a, b))| a != b)
@@ -891,7 +891,6 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
             multiwire: c.multiwire.clone(),
         })
         .collect();
-    let mut moves = moves;
     let mut free = FreePositions::new(job, cs, layout);
     let swaps = pair_swaps(&mut moves, &mut free);
     Balance {

@@ -102,6 +102,25 @@ pub enum Verdict {
 }
 
 impl Verdict {
+    /// Its spelling in the report: `healthy`, …, `not_physical`.
+    pub fn code(self) -> &'static str {
+        match self {
+            Verdict::Healthy => "healthy",
+            Verdict::Suspect => "suspect",
+            Verdict::Dangerous => "dangerous",
+            Verdict::Inconclusive => "inconclusive",
+            Verdict::NotPhysical => "not_physical",
+        }
+    }
+
+    /// In words: `healthy`, …, `not physical`.
+    pub fn word(self) -> &'static str {
+        match self {
+            Verdict::NotPhysical => "not physical",
+            other => other.code(),
+        }
+    }
+
     /// Which verdict wins when two are combined: what cannot be trusted first, then the worse.
     fn rank(self) -> u8 {
         match self {
@@ -460,13 +479,6 @@ fn compare(sets: &[SetOutcome]) -> Option<String> {
             s.taken.trim().to_string()
         }
     };
-    let word = |v: Verdict| match v {
-        Verdict::Healthy => "healthy",
-        Verdict::Suspect => "suspect",
-        Verdict::Dangerous => "dangerous",
-        Verdict::Inconclusive => "inconclusive",
-        Verdict::NotPhysical => "not physical",
-    };
     let change = d1.neutral_ohms - d0.neutral_ohms;
     let bound = d0.neutral_ohms_uncertainty + d1.neutral_ohms_uncertainty;
     let verdict = if change.abs() <= bound {
@@ -481,11 +493,11 @@ fn compare(sets: &[SetOutcome]) -> Option<String> {
         when(s0),
         d0.neutral_ohms,
         d0.neutral_ohms_uncertainty,
-        word(d0.verdict),
+        d0.verdict.word(),
         when(s1),
         d1.neutral_ohms,
         d1.neutral_ohms_uncertainty,
-        word(d1.verdict),
+        d1.verdict.word(),
     ))
 }
 

@@ -102,18 +102,13 @@ pub fn plan(job: &Job) -> Result<Plan, SolveError> {
     let with = job.with_planned();
     let after = analyze(&with)?;
     let planned: Vec<String> = job.planned().iter().map(|l| l.name().to_string()).collect();
-    // Reports list loads in the job's order; the "after" job is in file order, so each of its
-    // loads is matched to the as-found report by its place in the file.
-    let found: Vec<usize> = job.loads().iter().map(|l| l.file_index()).collect();
-    let appliances = with
-        .loads()
+    // Each appliance of the "after" report is matched to the as-found report by its place in the
+    // job file; a planned one has none.
+    let appliances = after
+        .loads
         .iter()
-        .zip(&after.loads)
-        .map(|(load, a)| {
-            let before = found
-                .iter()
-                .position(|&f| f == load.file_index())
-                .map(|k| &now.loads[k]);
+        .map(|a| {
+            let before = now.loads.iter().find(|b| b.index == a.index);
             Appliance {
                 name: a.name.clone(),
                 planned: before.is_none(),
