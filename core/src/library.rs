@@ -345,6 +345,101 @@ pub const APPLIANCES: &[Appliance] = &[
         None,
         &[],
     ),
+    a(
+        "well-pump",
+        "Well pump (1 hp, 240 V)",
+        1400.0,
+        240.0,
+        Across,
+        "motor",
+        0.80,
+        None,
+        &[],
+    ),
+    a(
+        "dehumidifier",
+        "Dehumidifier",
+        600.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.85,
+        None,
+        &[],
+    ),
+    a(
+        "garage-door",
+        "Garage door opener",
+        500.0,
+        120.0,
+        ToNeutral,
+        "motor",
+        0.70,
+        None,
+        &[],
+    ),
+    a(
+        "dishwasher",
+        "Dishwasher (heating)",
+        1200.0,
+        120.0,
+        ToNeutral,
+        "resistive",
+        1.0,
+        None,
+        &[],
+    ),
+    a(
+        "induction-range",
+        "Induction range",
+        7200.0,
+        240.0,
+        Across,
+        "electronic",
+        0.98,
+        Some((200.0, 264.0)),
+        CORRECTED,
+    ),
+    a(
+        "welder",
+        "Stick welder (240 V, transformer type)",
+        5000.0,
+        240.0,
+        Across,
+        "impedance",
+        0.55,
+        None,
+        &[],
+    ),
+    a(
+        "fluorescent",
+        "Fluorescent fixture (electronic ballast)",
+        64.0,
+        120.0,
+        ToNeutral,
+        "electronic",
+        0.98,
+        Some((108.0, 305.0)),
+        CORRECTED,
+    ),
+];
+
+/// Starting draw of the library's motors: locked-rotor current as a multiple of running current
+/// (typical values, common practice, no source; a nameplate's code letter or locked-rotor amperes
+/// always wins). A motor not listed starts at the engine's default multiple, 5.
+const STARTS: &[(&str, f64)] = &[
+    ("fridge", 6.0),
+    ("freezer", 6.0),
+    ("window-ac", 6.0),
+    ("heat-pump", 6.0),
+    ("well-pump", 6.0),
+    ("sump-pump", 5.0),
+    ("dehumidifier", 5.0),
+    ("furnace-blower", 4.0),
+    ("washer", 4.0),
+    ("garage-door", 4.0),
+    ("table-saw", 6.0),
+    ("air-compressor", 6.0),
 ];
 
 /// Finds an appliance by id.
@@ -362,6 +457,12 @@ pub fn search(query: &str) -> Vec<&'static Appliance> {
 }
 
 impl Appliance {
+    /// A motor's locked-rotor current as a multiple of its running current, when the library
+    /// states one (see `STARTS`).
+    pub fn starts(&self) -> Option<f64> {
+        STARTS.iter().find(|(id, _)| *id == self.id).map(|(_, m)| *m)
+    }
+
     /// A job-file load for this appliance on `connect` (`L1-N`, `L1-L2`, ...).
     pub fn to_load(&self, name: &str, connect: &str) -> LoadFile {
         LoadFile {
@@ -388,8 +489,34 @@ impl Appliance {
             } else {
                 Raw::Given(self.harmonics.to_vec())
             },
+            locked_rotor_multiple: self.starts().map(Raw::Given).unwrap_or_default(),
             appliance: Raw::Given(self.id.to_string()),
             ..LoadFile::default()
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_starting_multiple_names_a_motor_of_the_library() {
+        for (id, m) in STARTS {
+            let a = find(id).unwrap_or_else(|| panic!("{id} is not in the library"));
+            assert_eq!(a.model, "motor", "{id}");
+            assert!((2.0..=10.0).contains(m), "{id}: {m}");
+            assert_eq!(a.to_load("x", "L1-N").locked_rotor_multiple, Raw::Given(*m));
+        }
+        // A motor without a row leaves the multiple to the engine's default.
+        assert!(find("microwave").unwrap().starts().is_none());
+    }
+
+    #[test]
+    fn ids_are_unique_and_every_entry_is_searchable_by_id() {
+        for a in APPLIANCES {
+            assert_eq!(APPLIANCES.iter().filter(|b| b.id == a.id).count(), 1, "{}", a.id);
+            assert!(search(a.id).iter().any(|b| b.id == a.id));
         }
     }
 }
