@@ -11,6 +11,7 @@ use tapline_core::job::{
 use tapline_core::library::{Appliance, Hookup};
 use tapline_core::validate::Problem;
 
+pub mod neutral;
 pub mod panel;
 pub mod readings;
 pub mod sizing;
@@ -503,41 +504,6 @@ pub fn set_planned(job: &mut JobFile, i: usize, planned: bool) {
     }
 }
 
-/// The neutral's state, ohms and earth-return text.
-pub fn neutral_of(job: &JobFile) -> (String, String, String) {
-    let n = job.neutral.given().cloned().unwrap_or_default();
-    let state = n
-        .state
-        .given()
-        .cloned()
-        .unwrap_or_else(|| "intact".to_string());
-    (
-        state,
-        text_of_number(&n.ohms),
-        text_of_number(&n.earth_return_ohms),
-    )
-}
-
-/// Sets the neutral's state (`intact`, `loose`, `open`), keeping the numbers typed for the others.
-pub fn set_neutral_state(job: &mut JobFile, state: &str) {
-    let mut n = job.neutral.given().cloned().unwrap_or_default();
-    n.state = Raw::Given(state.to_string());
-    if state == "loose" && n.ohms.is_absent() {
-        n.ohms = Raw::Given(1.0);
-    }
-    job.neutral = Raw::Given(n);
-}
-
-/// Sets the loose-neutral resistance or the earth-return resistance (`ohms`, `earth_return_ohms`).
-pub fn set_neutral_number(job: &mut JobFile, field: &str, text: &str) {
-    let mut n = job.neutral.given().cloned().unwrap_or_default();
-    match field {
-        "ohms" => n.ohms = number_from_text(text),
-        _ => n.earth_return_ohms = number_from_text(text),
-    }
-    job.neutral = Raw::Given(n);
-}
-
 fn loads_mut(job: &mut JobFile) -> &mut Vec<Raw<LoadFile>> {
     entries_mut(&mut job.loads)
 }
@@ -860,18 +826,6 @@ mod tests {
         set_load_field(&mut job, 0, "multiwire", "A");
         remove_multiwire(&mut job, 0);
         assert!(loads(&job)[0].multiwire.is_absent());
-        assert!(validate(&job).is_ok());
-    }
-
-    #[test]
-    fn neutral_states() {
-        let mut job = new_job("Test");
-        set_neutral_state(&mut job, "loose");
-        assert_eq!(neutral_of(&job).1, "1");
-        set_neutral_number(&mut job, "ohms", "");
-        assert!(validate(&job).is_err());
-        set_neutral_state(&mut job, "open");
-        set_neutral_number(&mut job, "earth_return_ohms", "25");
         assert!(validate(&job).is_ok());
     }
 }

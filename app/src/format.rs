@@ -1,6 +1,7 @@
 //! Text for numbers and results. Formatting only: every value comes from the engine's report.
 
 use tapline_core::report::Report;
+use tapline_core::validated::NeutralState;
 
 /// Volts with one decimal, or a dash when undefined.
 pub fn volts(v: Option<f64>) -> String {
@@ -19,15 +20,31 @@ pub fn pct(p: Option<f64>) -> String {
         .unwrap_or_else(|| "—".to_string())
 }
 
+/// How far a voltage sits below nominal (`voltage_drop_v` of the report: nominal minus actual,
+/// volts), said the way round it is: `2.4 V`, or `1.3 V above` when the voltage is over nominal.
+pub fn below_nominal(drop_v: Option<f64>) -> String {
+    match drop_v {
+        None => "—".to_string(),
+        Some(d) if d < -0.05 => format!("{:.1} V above", -d),
+        Some(d) => format!("{:.1} V", d.max(0.0)),
+    }
+}
+
 /// A plain number with a fixed number of decimals.
 pub fn fixed(v: f64, decimals: usize) -> String {
     format!("{v:.decimals$}")
 }
 
-/// The one-line status shown for a job in the list: the neutral current now, and which appliance
-/// would get the highest voltage if the neutral opened, with that voltage.
-pub fn status_line(now: &Report, if_open: Option<&Report>) -> String {
-    let mut s = format!("neutral {:.0} A", now.neutral_current_a);
+/// The one-line status shown for a job in the list: the neutral as found when it is not intact,
+/// the neutral current as found, and which appliance would get the highest voltage if the neutral
+/// opened, with that voltage.
+pub fn status_line(found: NeutralState, now: &Report, if_open: Option<&Report>) -> String {
+    let mut s = match found {
+        NeutralState::Intact => String::new(),
+        NeutralState::Loose { ohms } => format!("neutral found loose ({ohms} Ω) · "),
+        NeutralState::Open => "neutral found open · ".to_string(),
+    };
+    s.push_str(&format!("neutral {:.0} A", now.neutral_current_a));
     if let Some(open) = if_open {
         let worst = open
             .loads
@@ -122,6 +139,10 @@ mod tests {
         assert_eq!(volts(None), "—");
         assert_eq!(amps(9.96), "10.0 A");
         assert_eq!(pct(Some(167.6)), "168 %");
+        assert_eq!(below_nominal(Some(2.44)), "2.4 V");
+        assert_eq!(below_nominal(Some(-1.3)), "1.3 V above");
+        assert_eq!(below_nominal(Some(-0.01)), "0.0 V");
+        assert_eq!(below_nominal(None), "—");
     }
 
     #[test]
@@ -146,8 +167,13 @@ mod tests {
     fn status_names_the_appliance_that_suffers_most_when_the_neutral_opens() {
         let (_, job) = tapline_core::load_job(tapline_core::demo::DEMO_JOB).unwrap();
         let w = tapline_core::whatif::what_if(&job).unwrap();
-        let line = status_line(&w.intact, Some(&w.open));
+        let line = status_line(NeutralState::Intact, &w.intact, Some(&w.open));
         assert!(line.starts_with("neutral "), "{line}");
+        let line = status_line(job.neutral(), &w.intact, Some(&w.open));
+        assert!(
+            line.starts_with("neutral found loose (1.5 Ω) · neutral "),
+            "{line}"
+        );
         assert!(line.contains("if it opens: "), "{line}");
     }
 }

@@ -22,6 +22,13 @@ use state::{AppState, Screen};
 pub fn App() -> impl IntoView {
     let state = AppState::new();
     provide_context(state);
+    // Another tab saved or deleted a job: the list shows what is stored now. (An open job's own
+    // save checks its revision, see `state::check_save`.)
+    let _ = window_event_listener(leptos::ev::storage, move |ev| {
+        if ev.key().is_some_and(|k| storage::is_job_key(&k)) {
+            state.refresh_jobs();
+        }
+    });
     view! {
         // Everything sits in a landmark (banner or main), so a screen reader can jump between them.
         <header>
@@ -33,7 +40,12 @@ pub fn App() -> impl IntoView {
         </header>
         <main>
             <div class="banners">
-                {move || state.banners.get().into_iter().map(|b| view! { <p class="banner" role="alert" data-testid="banner">{b}</p> }).collect_view()}
+                {move || state.banners.get().into_iter().enumerate().map(|(i, b)| view! {
+                    <p class="banner" role="alert" data-testid="banner">
+                        {b.text}
+                        <button class="small" data-testid="dismiss-banner" aria-label="Dismiss" on:click=move |_| state.dismiss(i)>"✕"</button>
+                    </p>
+                }).collect_view()}
             </div>
             {move || match state.screen.get() {
                 Screen::Jobs => view! { <JobsPage /> }.into_any(),

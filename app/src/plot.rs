@@ -4,6 +4,10 @@
 //! x: the sweep's points in order, evenly spaced; they are log-spaced in ohms from 0.01 Ω to
 //! 1 kΩ between "0" at the left edge and "open" at the right, so the axis reads as a log scale.
 //! y: each appliance's voltage as a percentage of its own rating, 0 % at the bottom.
+//!
+//! Appliances on one connection whose curves agree within [`SAME_LINE_PCT`] at every point share
+//! a line, so none hides another: each line lists its appliances, carries a label at its end and
+//! a dash pattern of its own, and a readout gives every appliance's figure at any point.
 
 use tapline_core::classify::ansi;
 use tapline_core::whatif::Sweep;
@@ -12,7 +16,8 @@ use tapline_core::whatif::Sweep;
 pub const WIDTH: f64 = 360.0;
 pub const HEIGHT: f64 = 240.0;
 const LEFT: f64 = 40.0;
-const RIGHT: f64 = 8.0;
+/// Room at the right for each line's end label.
+const RIGHT: f64 = 44.0;
 const TOP: f64 = 8.0;
 const BOTTOM: f64 = 28.0;
 
@@ -25,13 +30,83 @@ pub struct Band {
     pub label: &'static str,
 }
 
-/// One appliance's line.
+/// Two appliances share a line when their voltages, in % of rating, differ by less than this at
+/// every point of the sweep (half a step of the 1 % a person reads off the plot).
+pub const SAME_LINE_PCT: f64 = 0.5;
+
+/// Dash patterns, one per line in turn, so lines are told apart without colour.
+pub const DASHES: [&str; 4] = ["", "7 4", "2 3", "9 3 2 3"];
+
+/// One line of the plot: the appliances of one connection that see the same voltage.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Line {
-    pub name: String,
+    /// The end label: the connection (`L1-N`), with a letter when it has more than one line.
+    pub label: String,
+    /// The appliances on the line, in job order.
+    pub names: Vec<String>,
     pub path: String,
-    /// Index into the plot's palette, so the legend and the line match.
+    /// Index into the plot's palette and dash patterns, so the legend and the line match.
     pub series: usize,
+    /// Where the end label goes (the line's last drawn point).
+    pub end: Option<(f64, f64)>,
+}
+
+impl Line {
+    /// The line's dash pattern.
+    pub fn dash(&self) -> &'static str {
+        DASHES[self.series % DASHES.len()]
+    }
+}
+
+/// Every appliance's figure at one point of the sweep.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Readout {
+    /// The neutral resistance at the point, as text (`3.2 Ω`, `open`).
+    pub ohms: String,
+    /// (appliance, connection, volts or `None` while its neutral floats, outcome).
+    pub rows: Vec<(String, String, Option<f64>, tapline_core::classify::Outcome)>,
+}
+
+/// The readout at sweep point `k` (clamped to the sweep).
+pub fn readout(sweep: &Sweep, k: usize) -> Readout {
+    let k = k.min(sweep.neutral_ohms.len().saturating_sub(1));
+    let ohms = match sweep.neutral_ohms.get(k).copied().flatten() {
+        None => "open".to_string(),
+        Some(0.0) => "0 Ω (solid)".to_string(),
+        Some(o) if o < 1.0 => format!("{o:.2} Ω"),
+        Some(o) if o < 100.0 => format!("{o:.1} Ω"),
+        Some(o) => format!("{o:.0} Ω"),
+    };
+    Readout {
+        ohms,
+        rows: sweep
+            .loads
+            .iter()
+            .map(|s| {
+                (
+                    s.name.clone(),
+                    s.connect.clone(),
+                    s.volts.get(k).copied().flatten(),
+                    s.outcomes
+                        .get(k)
+                        .copied()
+                        .unwrap_or(tapline_core::classify::Outcome::Off),
+                )
+            })
+            .collect(),
+    }
+}
+
+/// The sweep point under `x` (SVG user units) on a plot of `n` points.
+pub fn index_at(x: f64, n: usize) -> usize {
+    let w = WIDTH - LEFT - RIGHT;
+    let t = ((x - LEFT) / w).clamp(0.0, 1.0);
+    (t * (n.max(2) - 1) as f64).round() as usize
+}
+
+/// The x of sweep point `k` of `n`, SVG user units.
+pub fn x_at(k: usize, n: usize) -> f64 {
+    x_of(k, n)
 }
 
 /// An axis tick.
@@ -110,31 +185,35 @@ pub fn layout(sweep: &Sweep, marker_ohms: Option<Option<f64>>) -> Plot {
             "under-voltage",
         ),
     ];
-    let lines = sweep
-        .loads
-        .iter()
+    let lines = group(sweep)
+        .into_iter()
         .enumerate()
-        .map(|(i, s)| {
+        .map(|(series, (label, members))| {
+            let first = &sweep.loads[members[0]];
             let mut path = String::new();
             let mut pen_down = false;
-            for (k, v) in s.volts.iter().enumerate() {
+            let mut end = None;
+            for (k, v) in first.volts.iter().enumerate() {
                 match v {
                     Some(v) => {
                         let cmd = if pen_down { 'L' } else { 'M' };
-                        path.push_str(&format!(
-                            "{cmd}{:.1} {:.1} ",
-                            x_of(k, n),
-                            y_of(v / s.rated_v * 100.0)
-                        ));
+                        let (x, y) = (x_of(k, n), y_of(v / first.rated_v * 100.0));
+                        path.push_str(&format!("{cmd}{x:.1} {y:.1} "));
                         pen_down = true;
+                        end = Some((x, y));
                     }
                     None => pen_down = false,
                 }
             }
             Line {
-                name: s.name.clone(),
+                label,
+                names: members
+                    .iter()
+                    .map(|&i| sweep.loads[i].name.clone())
+                    .collect(),
                 path: path.trim_end().to_string(),
-                series: i,
+                series,
+                end,
             }
         })
         .collect();
@@ -178,6 +257,57 @@ pub fn layout(sweep: &Sweep, marker_ohms: Option<Option<f64>>) -> Plot {
     }
 }
 
+/// The appliances grouped into lines: per connection, those whose curves agree within
+/// [`SAME_LINE_PCT`] everywhere (and float at the same points) share one. Returns each line's
+/// label and its members' indices.
+fn group(sweep: &Sweep) -> Vec<(String, Vec<usize>)> {
+    let pct = |i: usize| -> Vec<Option<f64>> {
+        let s = &sweep.loads[i];
+        s.volts
+            .iter()
+            .map(|v| v.map(|v| v / s.rated_v * 100.0))
+            .collect()
+    };
+    let same = |a: &[Option<f64>], b: &[Option<f64>]| {
+        a.iter().zip(b).all(|(x, y)| match (x, y) {
+            (Some(x), Some(y)) => (x - y).abs() < SAME_LINE_PCT,
+            (None, None) => true,
+            _ => false,
+        })
+    };
+    let mut groups: Vec<(String, Vec<usize>, Vec<Option<f64>>)> = Vec::new();
+    for i in 0..sweep.loads.len() {
+        let curve = pct(i);
+        let connect = &sweep.loads[i].connect;
+        match groups
+            .iter_mut()
+            .find(|(c, _, g)| c == connect && same(g, &curve))
+        {
+            Some(g) => g.1.push(i),
+            None => groups.push((connect.clone(), vec![i], curve)),
+        }
+    }
+    // A connection with more than one line gets letters: L1-N a, L1-N b.
+    let labels: Vec<String> = groups
+        .iter()
+        .map(|(c, members, _)| {
+            let same_connect: Vec<&Vec<usize>> =
+                groups.iter().filter(|g| &g.0 == c).map(|g| &g.1).collect();
+            if same_connect.len() == 1 {
+                c.clone()
+            } else {
+                let k = same_connect.iter().position(|m| *m == members).unwrap_or(0);
+                format!("{c} {}", (b'a' + (k % 26) as u8) as char)
+            }
+        })
+        .collect();
+    groups
+        .into_iter()
+        .zip(labels)
+        .map(|((_, members, _), label)| (label, members))
+        .collect()
+}
+
 /// The index of the sweep point nearest `ohms` on a log scale (0 Ω matches the first point).
 fn nearest(sweep: &Sweep, ohms: f64) -> Option<usize> {
     if ohms <= 0.0 {
@@ -205,8 +335,17 @@ mod tests {
         let (_, job) = tapline_core::load_job(tapline_core::demo::DEMO_JOB).unwrap();
         let s = sweep(&job, &sweep_points(100)).unwrap();
         let p = layout(&s, Some(Some(1.5)));
-        assert_eq!(p.lines.len(), job.loads().len());
-        let heater = &p.lines[2]; // the aquarium heater on the lightly loaded leg
+        // Every appliance is on exactly one line.
+        let mut all: Vec<&String> = p.lines.iter().flat_map(|l| &l.names).collect();
+        all.sort();
+        let mut names: Vec<&String> = s.loads.iter().map(|l| &l.name).collect();
+        names.sort();
+        assert_eq!(all, names);
+        let heater = p
+            .lines
+            .iter()
+            .find(|l| l.names.iter().any(|n| n == "Aquarium heater"))
+            .unwrap(); // on the lightly loaded leg
         assert!(heater.path.starts_with(&format!("M{:.1} ", LEFT)));
         let ys: Vec<f64> = heater
             .path
@@ -219,6 +358,44 @@ mod tests {
         assert_eq!(p.x_ticks.last().unwrap().label, "open");
         let m = p.marker_x.unwrap();
         assert!(m > LEFT && m < WIDTH - RIGHT);
+    }
+
+    /// Two 120 V resistive appliances on L1 with no branch conductors see the same voltage at
+    /// every neutral resistance (they share the panel's L1 bus; common practice, no source), so
+    /// they share a line; one on L2 and a 240 V appliance each get their own.
+    #[test]
+    fn appliances_that_see_one_voltage_share_a_line_and_others_do_not() {
+        let job = tapline_core::load_job(
+            r#"{"version": 1, "name": "t",
+                "system": {"kind": "split-phase", "volts_to_neutral": 120, "frequency_hz": 60},
+                "loads": [
+                  {"name": "Kettle", "connect": "L1-N", "model": "resistive", "watts": 1500, "rated_v": 120},
+                  {"name": "Lamp", "connect": "L1-N", "model": "resistive", "watts": 60, "rated_v": 120},
+                  {"name": "Heater", "connect": "L2-N", "model": "resistive", "watts": 500, "rated_v": 120},
+                  {"name": "Dryer", "connect": "L1-L2", "model": "resistive", "watts": 4000, "rated_v": 240}]}"#,
+        )
+        .unwrap()
+        .1;
+        let s = sweep(&job, &sweep_points(40)).unwrap();
+        let p = layout(&s, None);
+        let labels: Vec<&str> = p.lines.iter().map(|l| l.label.as_str()).collect();
+        assert_eq!(labels, ["L1-N", "L2-N", "L1-L2"]);
+        assert_eq!(p.lines[0].names, ["Kettle", "Lamp"]);
+        assert_ne!(p.lines[0].dash(), p.lines[1].dash());
+        assert!(p.lines.iter().all(|l| l.end.is_some()));
+        // Open: the light leg (L2 heater) rises, the heavy leg falls; the readout gives every
+        // appliance by name at the last point.
+        let r = readout(&s, index_at(WIDTH, s.neutral_ohms.len()));
+        assert_eq!(r.ohms, "open");
+        assert_eq!(r.rows.len(), 4);
+        let v = |name: &str| r.rows.iter().find(|row| row.0 == name).unwrap().2.unwrap();
+        // Hand check: 1560 W on L1 and 500 W on L2 at 120 V are 9.23 Ω and 28.8 Ω in series
+        // across 240 V: L1 gets 240·9.23/38.03 = 58.2 V, L2 181.8 V (the dryer keeps 240 V).
+        assert!((v("Kettle") - 58.2).abs() < 0.3, "{}", v("Kettle"));
+        assert!((v("Heater") - 181.8).abs() < 0.3, "{}", v("Heater"));
+        assert!((v("Dryer") - 240.0).abs() < 1e-6);
+        assert_eq!(index_at(0.0, 40), 0);
+        assert_eq!(readout(&s, 0).ohms, "0 Ω (solid)");
     }
 
     #[test]

@@ -2,6 +2,7 @@
 //! engine. Every number shown comes from these memos.
 
 use crate::edit;
+use crate::edit::neutral::Explore;
 use crate::storage::{self, Settings, StoredJob};
 use leptos::prelude::*;
 use tapline_core::job::{JobFile, Raw};
@@ -9,8 +10,8 @@ use tapline_core::report::{analyze, Report};
 use tapline_core::tools::balance::{balance, schedule, Balance, Layout, Row};
 use tapline_core::tools::diagnose::{history, History};
 use tapline_core::tools::plan::{plan, Plan};
-use tapline_core::validate::{validate, Problem};
-use tapline_core::validated::Job;
+use tapline_core::validate::{validate, what_if_neutral, Problem};
+use tapline_core::validated::{Job, NeutralState};
 use tapline_core::whatif::{sweep, sweep_points, what_if, Sweep, WhatIf};
 
 /// Points in the app's neutral sweep plot.
@@ -35,6 +36,59 @@ pub enum Tab {
     Readings,
 }
 
+/// The what-if's neutral solved on the job: never saved into it.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Explored {
+    /// The neutral explored and the job's report with it.
+    Ready {
+        neutral: NeutralState,
+        report: Box<Report>,
+    },
+    /// The resistance typed for a loose neutral is refused: the engine's message.
+    Field(String),
+    /// The job does not solve in that state.
+    Failed(String),
+}
+
+/// A message at the top of the screen.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Notice {
+    pub text: String,
+    /// A storage problem: cleared by itself once a save succeeds again.
+    pub storage: bool,
+}
+
+/// Another tab or window saved or deleted the open job since this one read it.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Conflict {
+    /// Saved there: the version it saved.
+    Changed(Box<StoredJob>),
+    /// Deleted there.
+    Deleted,
+}
+
+/// What a save of the open job does.
+#[derive(Clone, Debug, PartialEq)]
+pub enum SaveCheck {
+    /// Nobody else wrote it: save as this revision.
+    Write {
+        revision: u64,
+    },
+    Conflict(Conflict),
+}
+
+/// Decides a save from the revision this tab last read or wrote (`None` when it never got into
+/// storage) and what storage holds now. A save never overwrites a version it has not seen, and
+/// never brings back a job deleted elsewhere.
+pub fn check_save(base: Option<u64>, stored: Option<StoredJob>) -> SaveCheck {
+    match (base, stored) {
+        (None, None) => SaveCheck::Write { revision: 1 },
+        (Some(_), None) => SaveCheck::Conflict(Conflict::Deleted),
+        (Some(b), Some(s)) if s.revision == b => SaveCheck::Write { revision: b + 1 },
+        (_, Some(s)) => SaveCheck::Conflict(Conflict::Changed(Box::new(s))),
+    }
+}
+
 /// A saved job in the list.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Entry {
@@ -52,8 +106,12 @@ pub struct AppState {
     pub structure: RwSignal<u64>,
     pub screen: RwSignal<Screen>,
     pub tab: RwSignal<Tab>,
-    pub banners: RwSignal<Vec<String>>,
+    pub banners: RwSignal<Vec<Notice>>,
     pub settings: RwSignal<Settings>,
+    /// The revision of the open job this tab last read or wrote (`None`: not in storage).
+    pub base: RwSignal<Option<u64>>,
+    /// Set when another tab saved or deleted the open job; saving waits for the person's choice.
+    pub conflict: RwSignal<Option<Conflict>>,
     /// The last deleted job, for undo.
     pub deleted: RwSignal<Option<Entry>>,
     /// Messages from the last import.
@@ -73,6 +131,11 @@ pub struct AppState {
     pub schedule: Memo<Option<Vec<Row>>>,
     /// The job as found beside the job with its planned appliances (none without planned ones).
     pub plan: Memo<Option<Result<Plan, String>>>,
+    /// The neutral state the what-if explores, apart from the job (the job keeps the neutral as
+    /// found on site).
+    pub explore: RwSignal<Explore>,
+    /// The job solved with the explored neutral (none while the job has problems).
+    pub explored: Memo<Option<Explored>>,
     /// The last edit that can be undone (balancing moves applied, an appliance removed): what it
     /// did, in words, and the job as it was before.
     pub undo: RwSignal<Option<(String, JobFile)>>,
@@ -137,6 +200,29 @@ impl AppState {
         let diagnosis = Memo::new(move |_| {
             valid.with(|v| v.as_ref().ok().map(|j| draft.with(|file| history(j, file))))
         });
+        let explore = RwSignal::new(Explore::Open);
+        let explored = Memo::new(move |_| {
+            let file = explore.with(Explore::to_file);
+            valid.with(|v| {
+                let job = v.as_ref().ok()?;
+                let neutral = match file.map(|f| what_if_neutral(&f)) {
+                    None => job.neutral(),
+                    Some(Ok(n)) => n,
+                    Some(Err(p)) => {
+                        return Some(Explored::Field(
+                            p.first().map(|p| p.message.clone()).unwrap_or_default(),
+                        ))
+                    }
+                };
+                Some(match analyze(&job.with_neutral(neutral)) {
+                    Ok(report) => Explored::Ready {
+                        neutral,
+                        report: Box::new(report),
+                    },
+                    Err(e) => Explored::Failed(e.to_string()),
+                })
+            })
+        });
         let flipped = RwSignal::new(false);
         let balance = Memo::new(move |_| {
             let layout = if flipped.get() {
@@ -162,6 +248,8 @@ impl AppState {
             screen: RwSignal::new(Screen::Jobs),
             tab: RwSignal::new(Tab::Results),
             banners: RwSignal::new(Vec::new()),
+            base: RwSignal::new(None),
+            conflict: RwSignal::new(None),
             settings: RwSignal::new(storage::load_settings()),
             deleted: RwSignal::new(None),
             import_problems: RwSignal::new(Vec::new()),
@@ -182,6 +270,8 @@ impl AppState {
                         .map(|j| plan(j).map_err(|e| e.to_string()))
                 })
             }),
+            explore,
+            explored,
             undo: RwSignal::new(None),
         };
         state.load();
@@ -191,10 +281,10 @@ impl AppState {
     fn load(&self) {
         let mut banners = Vec::new();
         if !storage::available() {
-            banners.push(storage::StorageError::Unavailable.to_string());
+            banners.push(storage::StorageError::Unavailable);
         }
         let (jobs, problems) = storage::load_jobs();
-        banners.extend(problems.iter().map(|p| p.to_string()));
+        banners.extend(problems);
         let mut entries: Vec<Entry> = jobs
             .into_iter()
             .map(|(id, stored)| Entry { id, stored })
@@ -203,16 +293,13 @@ impl AppState {
             if let Ok(demo) = tapline_core::job::parse_job(tapline_core::demo::DEMO_JOB) {
                 let entry = Entry {
                     id: new_id(),
-                    stored: StoredJob {
-                        saved_ms: now_ms(),
-                        job: demo,
-                    },
+                    stored: StoredJob::first(demo, now_ms()),
                 };
                 match storage::save_job(&entry.id, &entry.stored)
                     .and_then(|_| storage::mark_seeded())
                 {
                     Ok(()) => entries.insert(0, entry),
-                    Err(e) => banners.push(e.to_string()),
+                    Err(e) => banners.push(e),
                 }
             }
         } else if !storage::available() {
@@ -220,15 +307,33 @@ impl AppState {
             if let Ok(demo) = tapline_core::job::parse_job(tapline_core::demo::DEMO_JOB) {
                 entries.push(Entry {
                     id: new_id(),
-                    stored: StoredJob {
-                        saved_ms: now_ms(),
-                        job: demo,
-                    },
+                    stored: StoredJob::first(demo, now_ms()),
                 });
             }
         }
         self.jobs.set(entries);
-        self.banners.set(banners);
+        self.banners.set(
+            banners
+                .into_iter()
+                .map(|e| Notice {
+                    text: e.to_string(),
+                    storage: !matches!(e, storage::StorageError::SetAside { .. }),
+                })
+                .collect(),
+        );
+    }
+
+    /// Re-reads the saved jobs after another tab changed them, so the list shows what is stored.
+    pub fn refresh_jobs(&self) {
+        let (jobs, problems) = storage::load_jobs();
+        for p in problems {
+            self.storage_notice(p);
+        }
+        self.jobs.set(
+            jobs.into_iter()
+                .map(|(id, stored)| Entry { id, stored })
+                .collect(),
+        );
     }
 
     /// Opens a saved job in the editor.
@@ -244,24 +349,37 @@ impl AppState {
             .filter(|d| *d != entry.stored.job)
             .unwrap_or(entry.stored.job);
         self.draft.set(draft);
+        self.base
+            .set(storage::available().then_some(entry.stored.revision));
+        self.conflict.set(None);
         self.open_id.set(Some(entry.id));
         self.undo.set(None);
+        self.explore.set(Explore::Open);
         self.structure.update(|s| *s += 1);
         self.tab.set(Tab::Results);
         self.screen.set(Screen::Job);
     }
 
     /// Adds a job to the list and storage (a new id: nothing existing is overwritten) and opens it.
+    /// When the browser refuses to store it (full), the job is not listed, since it would be gone
+    /// after a reload, and the person is told; without storage at all it opens unsaved, as the
+    /// banner about storage says.
     pub fn add_and_open(&self, job: JobFile) {
+        let name = edit::text_of(&job.name);
         let entry = Entry {
             id: new_id(),
-            stored: StoredJob {
-                saved_ms: now_ms(),
-                job,
-            },
+            stored: StoredJob::first(job, now_ms()),
         };
-        if let Err(e) = storage::save_job(&entry.id, &entry.stored) {
-            self.banner(e.to_string());
+        match storage::save_job(&entry.id, &entry.stored) {
+            Ok(()) => self.storage_works(),
+            Err(e @ storage::StorageError::WriteRefused(_)) => {
+                self.storage_notice(e);
+                self.banner(format!(
+                    "“{name}” was not added: the browser has no room to keep it. Export and delete jobs you no longer need, then try again."
+                ));
+                return;
+            }
+            Err(e) => self.storage_notice(e),
         }
         let id = entry.id.clone();
         self.jobs.update(|j| j.insert(0, entry));
@@ -335,27 +453,113 @@ impl AppState {
         };
         let job = self.draft.get_untracked();
         // The draft's one validation, from the memo every result uses.
-        if self.job.with_untracked(Result::is_err) {
+        let valid = self.job.with_untracked(Result::is_ok);
+        if !valid || self.conflict.with_untracked(Option::is_some) {
             // Kept as typed, so a reload brings it back with its problems; the saved job stays
-            // the last valid version.
+            // the last valid version (or the other tab's, until the person chooses).
             if let Err(e) = storage::save_draft(&id, &job) {
-                self.banner(e.to_string());
+                self.storage_notice(e);
             }
             return;
         }
+        if !storage::available() {
+            return;
+        }
+        let now = match storage::load_job(&id) {
+            Ok(now) => now,
+            Err(e) => {
+                self.storage_notice(e);
+                return;
+            }
+        };
+        match check_save(self.base.get_untracked(), now) {
+            SaveCheck::Write { revision } => self.write(&id, job, revision),
+            SaveCheck::Conflict(c) => {
+                if let Err(e) = storage::save_draft(&id, &job) {
+                    self.storage_notice(e);
+                }
+                self.conflict.set(Some(c));
+            }
+        }
+    }
+
+    /// Writes the open job as `revision` and lists it.
+    fn write(&self, id: &str, job: JobFile, revision: u64) {
         let stored = StoredJob {
             saved_ms: now_ms(),
+            revision,
             job,
         };
-        match storage::save_job(&id, &stored) {
-            Ok(()) => storage::clear_draft(&id),
-            Err(e) => self.banner(e.to_string()),
-        }
-        self.jobs.update(|jobs| {
-            if let Some(e) = jobs.iter_mut().find(|e| e.id == id) {
-                e.stored = stored;
+        match storage::save_job(id, &stored) {
+            Ok(()) => {
+                storage::clear_draft(id);
+                self.base.set(Some(revision));
+                self.storage_works();
             }
-        });
+            Err(e) => self.storage_notice(e),
+        }
+        self.jobs
+            .update(|jobs| match jobs.iter_mut().find(|e| e.id == id) {
+                Some(e) => e.stored = stored,
+                None => jobs.insert(
+                    0,
+                    Entry {
+                        id: id.to_string(),
+                        stored,
+                    },
+                ),
+            });
+    }
+
+    /// Resolves a conflict by saving this tab's version over the other one (or again, when the
+    /// other tab deleted it).
+    pub fn keep_mine(&self) {
+        let Some(id) = self.open_id.get_untracked() else {
+            return;
+        };
+        let Some(c) = self.conflict.get_untracked() else {
+            return;
+        };
+        self.conflict.set(None);
+        let revision = match c {
+            Conflict::Changed(theirs) => theirs.revision + 1,
+            Conflict::Deleted => 1,
+        };
+        if self.job.with_untracked(Result::is_ok) {
+            self.write(&id, self.draft.get_untracked(), revision);
+        } else {
+            // Still invalid: the draft stays kept, and the next valid edit saves over theirs.
+            self.base.set(Some(revision - 1));
+        }
+    }
+
+    /// Resolves a conflict by taking the version the other tab saved, or, when it deleted the
+    /// job, by closing it here too.
+    pub fn take_theirs(&self) {
+        let Some(id) = self.open_id.get_untracked() else {
+            return;
+        };
+        match self.conflict.get_untracked() {
+            Some(Conflict::Changed(theirs)) => {
+                storage::clear_draft(&id);
+                self.base.set(Some(theirs.revision));
+                self.draft.set(theirs.job.clone());
+                self.jobs.update(|jobs| {
+                    if let Some(e) = jobs.iter_mut().find(|e| e.id == id) {
+                        e.stored = *theirs;
+                    }
+                });
+                self.structure.update(|s| *s += 1);
+            }
+            Some(Conflict::Deleted) => {
+                storage::clear_draft(&id);
+                self.jobs.update(|jobs| jobs.retain(|e| e.id != id));
+                self.open_id.set(None);
+                self.screen.set(Screen::Jobs);
+            }
+            None => {}
+        }
+        self.conflict.set(None);
     }
 
     /// Duplicates a saved job.
@@ -366,13 +570,10 @@ impl AppState {
         {
             let entry = Entry {
                 id: new_id(),
-                stored: StoredJob {
-                    saved_ms: now_ms(),
-                    job: edit::duplicate(&e.stored.job),
-                },
+                stored: StoredJob::first(edit::duplicate(&e.stored.job), now_ms()),
             };
             if let Err(err) = storage::save_job(&entry.id, &entry.stored) {
-                self.banner(err.to_string());
+                self.storage_notice(err);
             }
             self.jobs.update(|j| j.insert(0, entry));
         }
@@ -388,12 +589,13 @@ impl AppState {
             if let Some(e) = jobs.iter_mut().find(|e| e.id == id) {
                 e.stored.job.name = Raw::Given(name.trim().to_string());
                 e.stored.saved_ms = now_ms();
+                e.stored.revision += 1;
                 found = Some(e.stored.clone());
             }
         });
         if let Some(stored) = found {
             if let Err(e) = storage::save_job(id, &stored) {
-                self.banner(e.to_string());
+                self.storage_notice(e);
             }
         }
     }
@@ -408,7 +610,7 @@ impl AppState {
         });
         if let Some(entry) = removed {
             if let Err(e) = storage::delete_job(id) {
-                self.banner(e.to_string());
+                self.storage_notice(e);
             }
             self.deleted.set(Some(entry));
         }
@@ -418,18 +620,48 @@ impl AppState {
     pub fn undo_delete(&self) {
         if let Some(entry) = self.deleted.get_untracked() {
             if let Err(e) = storage::save_job(&entry.id, &entry.stored) {
-                self.banner(e.to_string());
+                self.storage_notice(e);
             }
             self.jobs.update(|j| j.insert(0, entry));
             self.deleted.set(None);
         }
     }
 
-    /// Shows a message at the top of the screen.
+    /// Shows a message at the top of the screen (once, however often it is raised).
     pub fn banner(&self, text: String) {
+        self.notice(Notice {
+            text,
+            storage: false,
+        });
+    }
+
+    /// Shows a storage problem in plain words; it goes once storage works again.
+    pub fn storage_notice(&self, e: storage::StorageError) {
+        let storage = !matches!(e, storage::StorageError::SetAside { .. });
+        self.notice(Notice {
+            text: e.to_string(),
+            storage,
+        });
+    }
+
+    fn notice(&self, n: Notice) {
+        if self.banners.with_untracked(|b| !b.contains(&n)) {
+            self.banners.update(|b| b.push(n));
+        }
+    }
+
+    /// Clears the storage notices after a save succeeded.
+    fn storage_works(&self) {
+        if self.banners.with_untracked(|b| b.iter().any(|n| n.storage)) {
+            self.banners.update(|b| b.retain(|n| !n.storage));
+        }
+    }
+
+    /// Dismisses notice `i`.
+    pub fn dismiss(&self, i: usize) {
         self.banners.update(|b| {
-            if !b.contains(&text) {
-                b.push(text)
+            if i < b.len() {
+                b.remove(i);
             }
         });
     }
@@ -439,7 +671,7 @@ impl AppState {
         self.settings.update(|s| s.units = units.code().to_string());
         self.structure.update(|s| *s += 1);
         if let Err(e) = storage::save_settings(&self.settings.get_untracked()) {
-            self.banner(e.to_string());
+            self.storage_notice(e);
         }
     }
 
@@ -447,7 +679,7 @@ impl AppState {
     pub fn accept_cautions(&self) {
         self.settings.update(|s| s.cautions_seen = true);
         if let Err(e) = storage::save_settings(&self.settings.get_untracked()) {
-            self.banner(e.to_string());
+            self.storage_notice(e);
         }
     }
 
@@ -478,9 +710,59 @@ pub fn status_of(job: &JobFile) -> String {
                     Ok(r) => r,
                     Err(e) => return e.to_string(),
                 };
-                crate::format::status_line(&now, Some(&w.open))
+                crate::format::status_line(j.neutral(), &now, Some(&w.open))
             }
             Err(e) => e.to_string(),
         },
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn stored(revision: u64) -> StoredJob {
+        StoredJob {
+            saved_ms: 1.0,
+            revision,
+            job: edit::new_job("t"),
+        }
+    }
+
+    #[test]
+    fn a_save_writes_the_next_revision_only_over_the_one_it_read() {
+        assert_eq!(
+            check_save(Some(3), Some(stored(3))),
+            SaveCheck::Write { revision: 4 }
+        );
+        // Another tab saved revision 4 meanwhile: ask, never overwrite.
+        assert_eq!(
+            check_save(Some(3), Some(stored(4))),
+            SaveCheck::Conflict(Conflict::Changed(Box::new(stored(4))))
+        );
+        // Another tab deleted it: not brought back without asking.
+        assert_eq!(
+            check_save(Some(3), None),
+            SaveCheck::Conflict(Conflict::Deleted)
+        );
+        // A job that never got into storage is written as its first revision.
+        assert_eq!(check_save(None, None), SaveCheck::Write { revision: 1 });
+        assert_eq!(
+            check_save(None, Some(stored(1))),
+            SaveCheck::Conflict(Conflict::Changed(Box::new(stored(1))))
+        );
+    }
+
+    #[test]
+    fn the_status_of_a_job_with_problems_counts_them() {
+        let mut job = edit::new_job("t");
+        job.name = Raw::Given(String::new());
+        assert!(
+            status_of(&job).ends_with("field(s) to fix"),
+            "{}",
+            status_of(&job)
+        );
+        let demo = tapline_core::job::parse_job(tapline_core::demo::DEMO_JOB).unwrap();
+        assert!(status_of(&demo).starts_with("neutral found loose"));
     }
 }

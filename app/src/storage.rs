@@ -2,8 +2,9 @@
 //!
 //! Storage schema, version 1 (local storage, one key per item so one bad item cannot spoil the
 //! rest):
-//! - `tapline.v1.job.<id>`: `{"saved_ms": <ms since 1970>, "job": <job file, format version 1>}`
-//!   (the job is exactly what `tapline solve` reads);
+//! - `tapline.v1.job.<id>`: `{"saved_ms": <ms since 1970>, "revision": <n>, "job": <job file,
+//!   format version 1>}` (the job is exactly what `tapline solve` reads; `revision` counts the
+//!   saves, 0 when absent, so a tab can tell that another one saved since it read the job);
 //! - `tapline.v1.aside.<id>`: a job item that could not be read (corrupt, or written by a newer
 //!   version), moved here untouched and reported, never deleted;
 //! - `tapline.v1.draft.<id>`: the job file as being edited, valid or not, kept on every
@@ -57,7 +58,21 @@ impl std::fmt::Display for StorageError {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct StoredJob {
     pub saved_ms: f64,
+    /// How many times the job was saved; a save checks it is still the revision it read.
+    #[serde(default)]
+    pub revision: u64,
     pub job: JobFile,
+}
+
+impl StoredJob {
+    /// A job saved for the first time, now.
+    pub fn first(job: JobFile, saved_ms: f64) -> StoredJob {
+        StoredJob {
+            saved_ms,
+            revision: 1,
+            job,
+        }
+    }
 }
 
 /// User settings.
@@ -136,6 +151,30 @@ pub fn load_jobs() -> (Vec<(String, StoredJob)>, Vec<StorageError>) {
     (jobs, problems)
 }
 
+/// The job stored under `id` now (another tab may have saved or deleted it since this one read
+/// it); `Ok(None)` when there is none.
+///
+/// # Errors
+/// [`StorageError::Unavailable`], or [`StorageError::SetAside`] naming the item when it cannot be
+/// read (it is left where it is).
+pub fn load_job(id: &str) -> Result<Option<StoredJob>, StorageError> {
+    let key = format!("{JOB_PREFIX}{id}");
+    let Some(text) = raw()?.get_item(&key).ok().flatten() else {
+        return Ok(None);
+    };
+    serde_json::from_str(&text)
+        .map(Some)
+        .map_err(|e| StorageError::SetAside {
+            key,
+            reason: format!("not a readable job ({e})"),
+        })
+}
+
+/// True for a storage key that holds a saved job (for the storage events other tabs raise).
+pub fn is_job_key(key: &str) -> bool {
+    key.starts_with(JOB_PREFIX)
+}
+
 /// Saves one job under its id.
 pub fn save_job(id: &str, stored: &StoredJob) -> Result<(), StorageError> {
     raw()?;
@@ -195,4 +234,40 @@ pub fn seeded() -> bool {
 pub fn mark_seeded() -> Result<(), StorageError> {
     raw()?;
     LocalStorage::set(SEEDED_KEY, true).map_err(|e| StorageError::WriteRefused(e.to_string()))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_job_stored_before_revisions_reads_as_revision_0_and_round_trips() {
+        let demo = tapline_core::job::parse_job(tapline_core::demo::DEMO_JOB).unwrap();
+        let old = format!(
+            r#"{{"saved_ms": 5, "job": {}}}"#,
+            tapline_core::job::job_to_json(&demo)
+        );
+        let s: StoredJob = serde_json::from_str(&old).unwrap();
+        assert_eq!((s.revision, s.saved_ms), (0, 5.0));
+        assert_eq!(s.job, demo);
+        let again: StoredJob = serde_json::from_str(&serde_json::to_string(&s).unwrap()).unwrap();
+        assert_eq!(again, s);
+        assert_eq!(StoredJob::first(demo, 7.0).revision, 1);
+    }
+
+    #[test]
+    fn job_keys_are_told_from_drafts_and_settings() {
+        assert!(is_job_key("tapline.v1.job.abc"));
+        assert!(!is_job_key("tapline.v1.draft.abc"));
+        assert!(!is_job_key(SETTINGS_KEY));
+    }
+
+    #[test]
+    fn storage_messages_are_plain_words() {
+        assert!(StorageError::Unavailable
+            .to_string()
+            .contains("private mode"));
+        let full = StorageError::WriteRefused("QuotaExceededError".into()).to_string();
+        assert!(full.contains("Storage may be full"), "{full}");
+    }
 }

@@ -10,7 +10,7 @@ pub const DEMO_JOB: &str = r#"{
   "transformer": { "kva": 37.5, "primary_v": 7200, "impedance_pct": 2.2, "x_over_r": 1.6 },
   "service": { "hot": { "material": "al", "size": "2/0", "length_m": 28 },
                "neutral": { "material": "al", "size": "1/0", "length_m": 28 } },
-  "neutral": { "state": "loose", "ohms": 1.5 },
+  "neutral": { "state": "loose", "ohms": 1.5, "found": "lights dim when the kettle runs; the neutral lug at the meter base is warm" },
   "loads": [
     { "name": "Electric kettle", "connect": "L1-N", "model": "resistive", "watts": 1500, "rated_v": 120, "appliance": "kettle", "circuit": "3" },
     { "name": "Refrigerator", "connect": "L1-N", "model": "motor", "watts": 180, "rated_v": 120, "power_factor": 0.8, "appliance": "fridge", "circuit": "5" },

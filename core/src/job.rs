@@ -24,7 +24,7 @@
 //! `delta-wye`, the default for wye; or `wye-wye`), per conductor `length_ft`, `sets` (parallel
 //! sets), `conduit` (`pvc`, `aluminum`, `steel`) and `temperature_c`, `neutral.earth_return_ohms`
 //! (the grounding electrode's path to the transformer neutral, beside the neutral conductor in every
-//! state), and per load `on`, `branch` (a conductor, one-way length), `input_min_v`/`input_max_v`
+//! state), `neutral.found` (how the neutral's state was found on site, in words), and per load `on`, `branch` (a conductor, one-way length), `input_min_v`/`input_max_v`
 //! (electronic supplies), `harmonics` (pairs of order and fraction of the fundamental current),
 //! `circuit`, `movable`, `slot`, a motor's starting draw (`locked_rotor_a`, or `code_letter` with
 //! `hp` per NEC Table 430.7(B), or `locked_rotor_multiple` of its running current; 5 if none is
@@ -268,6 +268,10 @@ pub struct NeutralFile {
     pub ohms: Raw<f64>,
     #[serde(skip_serializing_if = "Raw::is_absent")]
     pub earth_return_ohms: Raw<f64>,
+    /// How the state was found on site, in words ("0.35 Ω measured 2026-12-01, neutral lug
+    /// warm"): the neutral in a job is the neutral as found, never a what-if.
+    #[serde(skip_serializing_if = "Raw::is_absent")]
+    pub found: Raw<String>,
     /// Keys this format does not define, kept so the file round-trips; validation refuses them.
     #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
     pub unknown: Unknown,

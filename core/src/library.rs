@@ -460,7 +460,10 @@ impl Appliance {
     /// A motor's locked-rotor current as a multiple of its running current, when the library
     /// states one (see `STARTS`).
     pub fn starts(&self) -> Option<f64> {
-        STARTS.iter().find(|(id, _)| *id == self.id).map(|(_, m)| *m)
+        STARTS
+            .iter()
+            .find(|(id, _)| *id == self.id)
+            .map(|(_, m)| *m)
     }
 
     /// A job-file load for this appliance on `connect` (`L1-N`, `L1-L2`, ...).
@@ -515,7 +518,12 @@ mod tests {
     #[test]
     fn ids_are_unique_and_every_entry_is_searchable_by_id() {
         for a in APPLIANCES {
-            assert_eq!(APPLIANCES.iter().filter(|b| b.id == a.id).count(), 1, "{}", a.id);
+            assert_eq!(
+                APPLIANCES.iter().filter(|b| b.id == a.id).count(),
+                1,
+                "{}",
+                a.id
+            );
             assert!(search(a.id).iter().any(|b| b.id == a.id));
         }
     }

@@ -13,7 +13,7 @@
 
 use crate::conductors::{Conductor, Conduit, Material, Size, FEET_PER_METRE};
 use crate::fields::{Checker, Rule};
-use crate::job::{ConductorFile, JobFile, LoadFile, Raw, SystemFile, JOB_VERSION};
+use crate::job::{ConductorFile, JobFile, LoadFile, NeutralFile, Raw, SystemFile, JOB_VERSION};
 use crate::loads::{
     Connection, Load, LockedRotor, LockedRotorBasis, Model, CODE_LETTERS, ELECTRONIC_DEFAULT_RANGE,
     LOCKED_ROTOR_MULTIPLE, LOCKED_ROTOR_PF,
@@ -90,7 +90,7 @@ pub const CONDUCTOR_KEYS: &[&str] = &[
     "x_ohm",
 ];
 /// See [`JOB_KEYS`].
-pub const NEUTRAL_KEYS: &[&str] = &["state", "ohms", "earth_return_ohms"];
+pub const NEUTRAL_KEYS: &[&str] = &["state", "ohms", "earth_return_ohms", "found"];
 /// See [`JOB_KEYS`].
 pub const LOAD_KEYS: &[&str] = &[
     "name",
@@ -569,11 +569,17 @@ fn validate_neutral(c: &mut Checker, file: &JobFile) -> (NeutralState, Option<f6
         "neutral.earth_return_ohms",
         Rule::Between(EARTH_OHMS.0, EARTH_OHMS.1),
     );
+    c.text(&n.found, "neutral.found");
+    (neutral_state(c, n), earth)
+}
+
+/// The state and loose resistance of a neutral (`neutral.state`, `neutral.ohms`).
+fn neutral_state(c: &mut Checker, n: &NeutralFile) -> NeutralState {
     let state = match c.text(&n.state, "neutral.state") {
         None => "intact".to_string(),
         Some(s) => s.trim().to_ascii_lowercase(),
     };
-    let state = match state.as_str() {
+    match state.as_str() {
         "intact" => NeutralState::Intact,
         "loose" => match c.required_number(&n.ohms, "neutral.ohms", Rule::NonNegative(MAX_OHMS)) {
             Some(ohms) => NeutralState::Loose { ohms },
@@ -587,8 +593,22 @@ fn validate_neutral(c: &mut Checker, file: &JobFile) -> (NeutralState, Option<f6
             );
             NeutralState::Intact
         }
-    };
-    (state, earth)
+    }
+}
+
+/// A neutral state to explore (the app's what-if), checked by the same rules as a job's
+/// `neutral.state` and `neutral.ohms`; the job's own neutral and earth path are not touched.
+///
+/// # Errors
+/// The problems found, at `neutral.state` or `neutral.ohms`.
+pub fn what_if_neutral(n: &NeutralFile) -> Result<NeutralState, Vec<Problem>> {
+    let mut c = Checker::new();
+    let state = neutral_state(&mut c, n);
+    if c.problems.is_empty() {
+        Ok(state)
+    } else {
+        Err(c.problems)
+    }
 }
 
 fn validate_loads(c: &mut Checker, file: &JobFile, system: &System) -> Vec<Load> {
@@ -1069,4 +1089,51 @@ fn validate_multiwire(
         }
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn neutral(state: &str, ohms: Raw<f64>) -> NeutralFile {
+        NeutralFile {
+            state: Raw::Given(state.to_string()),
+            ohms,
+            ..NeutralFile::default()
+        }
+    }
+
+    #[test]
+    fn a_what_if_neutral_is_checked_by_the_job_rules() {
+        assert_eq!(
+            what_if_neutral(&neutral("loose", Raw::Given(2.5))),
+            Ok(NeutralState::Loose { ohms: 2.5 })
+        );
+        assert_eq!(
+            what_if_neutral(&neutral("open", Raw::Absent)),
+            Ok(NeutralState::Open)
+        );
+        let p = what_if_neutral(&neutral("loose", Raw::Given(-1.0))).unwrap_err();
+        assert_eq!(p[0].path, "neutral.ohms");
+        assert_eq!(p[0].message, "must be a number from 0 to 1000000 (got -1)");
+        let p = what_if_neutral(&neutral("loose", Raw::Absent)).unwrap_err();
+        assert_eq!(p[0].path, "neutral.ohms");
+        let p = what_if_neutral(&neutral("lose", Raw::Absent)).unwrap_err();
+        assert_eq!(p[0].path, "neutral.state");
+    }
+
+    #[test]
+    fn how_the_neutral_was_found_is_kept_and_must_be_text() {
+        let mut file = crate::job::parse_job(crate::demo::DEMO_JOB).unwrap();
+        let mut n = file.neutral.given().cloned().unwrap_or_default();
+        n.found = Raw::Given("0.35 Ω measured at the meter base".to_string());
+        file.neutral = Raw::Given(n.clone());
+        assert!(validate(&file).is_ok());
+        let text = crate::job::job_to_json(&file);
+        assert!(text.contains("\"found\""), "{text}");
+        n.found = Raw::Invalid(Value::from(3));
+        file.neutral = Raw::Given(n);
+        let p = validate(&file).unwrap_err();
+        assert!(p.iter().any(|p| p.path == "neutral.found"), "{p:?}");
+    }
 }

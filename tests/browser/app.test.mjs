@@ -19,7 +19,7 @@ describe('the app shell', () => {
     assert.equal(await page.textContent('[data-testid=app-title]'), 'Tapline');
     assert.match(await page.textContent('[data-testid=caution-line]'), /qualified persons/);
     // The demo job is there on first start, with its status line from the engine.
-    assert.match(await page.textContent('[data-testid=job-status]'), /^neutral \d+ A · if it opens: /);
+    assert.match(await page.textContent('[data-testid=job-status]'), /^neutral found loose \(1\.5 Ω\) · neutral \d+ A · if it opens: /);
     await shot(page, 'phone-jobs');
     assert.deepEqual(seen.errors, []);
     assert.deepEqual(local(seen), []);
@@ -73,26 +73,51 @@ describe('jobs', () => {
     await context.close();
   });
 
-  test('set the neutral loose and open and read each appliance outcome', async () => {
+  test('the what-if explores a loose and an open neutral without changing the job; the job records the neutral as found', async () => {
     const { context, page } = await phone(env.browser);
     await openApp(page, env.url);
     await page.click('[data-testid=open-job]');
+    const stored = () => page.evaluate(() => {
+      const key = Object.keys(localStorage).find((k) => k.startsWith('tapline.v1.job.'));
+      return JSON.parse(localStorage.getItem(key)).job.neutral;
+    });
+    const before = await stored();
     await page.click('[data-testid=tab-whatif]');
     assert.ok(await page.isVisible('[data-testid=caution-gate]'), 'cautions come first');
     await page.click('[data-testid=accept-cautions]');
+    assert.match(await page.textContent('[data-testid=neutral-as-found]'), /as found on site: loose, 1\.5 Ω \(lights dim/);
+    // The what-if opens on an open neutral.
+    assert.match(await page.textContent('[data-testid=what-if-heading]'), /If the neutral opens/);
+    const ifOpen = await page.$$eval('[data-testid=what-if-appliance]', (els) => els.map((e) => e.getAttribute('data-outcome')));
+    assert.ok(ifOpen.includes('likely_damage'), `outcomes if open: ${ifOpen}`);
     await page.click('[data-testid=neutral-loose]');
+    await page.fill('[data-testid=neutral-ohms]', 'lots');
+    assert.match(await page.textContent('[data-testid=whatif-tab] .field-error'), /Loose-connection resistance: must be a number from 0 to/);
     await page.fill('[data-testid=neutral-ohms]', '3');
     await page.waitForSelector('[data-testid=sweep-plot] path');
+    assert.ok(await page.isVisible('[data-testid=what-if-tag]'), 'a what-if says it is one');
     await shot(page, 'phone-whatif-loose');
-    const ifOpen = await page.$$eval('[data-testid=if-open]', (els) => els.map((e) => e.getAttribute('data-outcome')));
-    assert.ok(ifOpen.includes('likely_damage'), `outcomes if open: ${ifOpen}`);
-    await page.click('[data-testid=neutral-open]');
+    assert.deepEqual(await stored(), before, 'exploring saves nothing');
+    // Results are the job as found: the loose 1.5 Ω neutral, not the 3 Ω explored.
+    await page.click('[data-testid=tab-results]');
+    const asFound = await page.$$eval('[data-testid=appliance-result]', (els) => els.map((e) => e.getAttribute('data-outcome')));
+    assert.ok(!asFound.includes('stall'), `outcomes as found: ${asFound}`);
+    await page.reload();
+    await page.click('[data-testid=open-job]');
+    assert.deepEqual(await stored(), before, 'nor after a reload');
+    // Recording the neutral as found open is an edit of the job, on the Service tab.
+    await page.click('[data-testid=tab-service]');
+    await page.selectOption('[data-testid=found-state]', 'open');
+    await page.fill('[data-testid=neutral-found-how]', 'no neutral at the meter base, 2026-12-02');
+    assert.equal((await stored()).state, 'open');
     await page.click('[data-testid=tab-results]');
     const outcomes = await page.$$eval('[data-testid=appliance-result]', (els) => els.map((e) => e.getAttribute('data-outcome')));
     assert.ok(outcomes.includes('likely_damage') && outcomes.includes('stall'), `outcomes open: ${outcomes}`);
     // The homeowner summary says it in plain words, from the same results.
     assert.match(await page.textContent('[data-testid=homeowner-summary]'), /these appliances get a harmful voltage: .*Aquarium heater/);
     await shot(page, 'phone-results-open');
+    await page.click('[data-testid=back-to-jobs]');
+    assert.match(await page.textContent('[data-testid=job-status]'), /^neutral found open · /);
     await context.close();
   });
 

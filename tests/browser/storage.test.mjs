@@ -3,7 +3,9 @@
 // version survives; blocked storage still opens the demo and says that nothing is saved.
 import { after, before, describe, test } from 'node:test';
 import assert from 'node:assert/strict';
-import { openApp, phone, start } from './harness.mjs';
+import { writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { OUTPUT, openApp, phone, start } from './harness.mjs';
 
 let env;
 before(async () => { env = await start(); });
@@ -34,6 +36,7 @@ describe('storage faults', () => {
     await page.click('[data-testid=open-job]');
     await page.click('[data-testid=tab-service]');
     await page.evaluate(() => {
+      window.realSetItem = Storage.prototype.setItem;
       Storage.prototype.setItem = function full() { throw new DOMException('The quota has been exceeded.', 'QuotaExceededError'); };
     });
     await page.fill('[data-testid=job-name]', 'Renamed while full');
@@ -41,6 +44,35 @@ describe('storage faults', () => {
     assert.match(await page.textContent('[data-testid=banner]'), /Could not save: .*Storage may be full; export jobs to keep them/);
     const after = JSON.parse(await page.evaluate((k) => localStorage.getItem(k), key));
     assert.equal(after.job.name, before.job.name);
+    assert.equal(await page.locator('[data-testid=banner]').count(), 1, 'each message shows once');
+    // Once storage works again the message goes by itself and the edit is saved.
+    await page.evaluate(() => { Storage.prototype.setItem = window.realSetItem; });
+    await page.fill('[data-testid=job-name]', 'Renamed after');
+    await page.waitForSelector('[data-testid=banner]', { state: 'detached' });
+    assert.equal(JSON.parse(await page.evaluate((k) => localStorage.getItem(k), key)).job.name, 'Renamed after');
+    await context.close();
+  });
+
+  test('an import that storage cannot hold is refused with a message, never listed and then lost', async () => {
+    const { context, page } = await phone(env.browser);
+    await openApp(page, env.url);
+    const path = join(OUTPUT, 'import-when-full.json');
+    writeFileSync(path, JSON.stringify({ version: 1, name: '4 Birch Row', system: { kind: 'split-phase', volts_to_neutral: 120, frequency_hz: 60 }, loads: [] }));
+    await page.evaluate(() => {
+      window.realSetItem = Storage.prototype.setItem;
+      Storage.prototype.setItem = function full() { throw new DOMException('The quota has been exceeded.', 'QuotaExceededError'); };
+    });
+    await page.setInputFiles('[data-testid=import-file]', path);
+    await page.waitForSelector('[data-testid=banner] >> text=was not added');
+    assert.match(await page.textContent('body'), /“4 Birch Row” was not added: the browser has no room to keep it/);
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 1);
+    // Dismissed, a message goes.
+    const before = await page.locator('[data-testid=banner]').count();
+    await page.locator('[data-testid=dismiss-banner]').first().click();
+    assert.equal(await page.locator('[data-testid=banner]').count(), before - 1);
+    await page.evaluate(() => { Storage.prototype.setItem = window.realSetItem; });
+    await page.reload();
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 1);
     await context.close();
   });
 

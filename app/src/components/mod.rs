@@ -5,5 +5,5 @@ mod plot;
 mod result;
 
 pub use fields::{choices, NumberField, SelectField, TextField};
-pub use plot::SweepPlot;
+pub use plot::{PlotReadout, SweepPlot};
 pub use result::{CautionList, OutcomeBadge};

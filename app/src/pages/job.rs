@@ -6,7 +6,7 @@ use super::{
 };
 use crate::edit;
 use crate::files;
-use crate::state::{AppState, Screen, Tab};
+use crate::state::{AppState, Conflict, Screen, Tab};
 use leptos::prelude::*;
 use tapline_core::job::job_to_json;
 
@@ -44,6 +44,19 @@ pub fn JobPage() -> impl IntoView {
                     {tab_button(Tab::Readings, "Readings", "tab-readings")}
                 </nav>
             </div>
+            {move || state.conflict.with(|c| c.as_ref().map(|c| {
+                let (what, mine, theirs) = match c {
+                    Conflict::Changed(_) => ("This job was saved in another tab or window since you opened it here. Your edits here are kept but not saved yet.", "Save mine over it", "Load the other version"),
+                    Conflict::Deleted => ("This job was deleted in another tab or window. Your edits here are kept but not saved.", "Keep it (save mine again)", "Close it"),
+                };
+                view! {
+                    <div class="conflict" role="alert" data-testid="conflict">
+                        <p>{what}</p>
+                        <button data-testid="keep-mine" on:click=move |_| state.keep_mine()>{mine}</button>
+                        <button data-testid="take-theirs" on:click=move |_| state.take_theirs()>{theirs}</button>
+                    </div>
+                }
+            }))}
             <Show when=move || state.undo.with(|u| u.is_some())>
                 <div class="undo" data-testid="undo-edit-bar">
                     {move || state.undo.with(|u| u.as_ref().map(|(what, _)| what.clone()).unwrap_or_default())}

@@ -29,7 +29,14 @@ fn HomeownerSummary() -> impl IntoView {
                     Some(Ok(r)) => crate::format::homeowner_lines(r, &w.open),
                     _ => (String::new(), String::new()),
                 });
+                let urgent = state.report.with(|r| match r {
+                    Some(Ok(r)) if r.neutral.state != "intact" => Some(view! {
+                        <p data-testid="neutral-urgent"><strong>"The neutral was found loose or open: that is urgent to repair even while the appliances still get a usable voltage, because a bad neutral connection heats up and can fail completely without warning."</strong></p>
+                    }),
+                    _ => None,
+                });
                 view! {
+                    {urgent}
                     <p>{now}</p>
                     <p>{open}</p>
                 }
@@ -43,7 +50,7 @@ fn HomeownerSummary() -> impl IntoView {
             <h3>"For the homeowner"</h3>
             <p>"The neutral is the shared return wire of your electrical service. When it is loose or broken, some outlets get too much voltage and others too little, which can ruin appliances and start fires."</p>
             {lines}
-            <p>"Repairs to the service and panel are for a licensed electrician; the wires up to the meter belong to the utility. These figures are estimates from a model and are confirmed with a meter."</p>
+            <p>"Repairs to the service and panel are for a licensed electrician; the wires up to the meter belong to the utility. These figures are estimates from a model and must be confirmed with a meter by your electrician."</p>
             <button data-testid="print" on:click=move |_| { if let Some(w) = web_sys::window() { let _ = w.print(); } }>"Print"</button>
         </section>
     }
@@ -130,7 +137,7 @@ fn ReportView(report: Report) -> impl IntoView {
                     <th>{name.clone()}</th>
                     <td class="big-figure">{format::amps(leg.current_a)}</td>
                     <td class="big-figure" data-testid=format!("leg-volts-{name}")>{format::volts(leg.volts_to_neutral)}</td>
-                    <td>{leg.voltage_drop_v.map(|d| format!("{d:.1} V")).unwrap_or_else(|| "—".into())}</td>
+                    <td>{format::below_nominal(leg.voltage_drop_v)}</td>
                     <td>{leg.ansi_range.unwrap_or("—")}</td>
                 </tr>
             }
@@ -188,14 +195,20 @@ fn ReportView(report: Report) -> impl IntoView {
         report.neutral.state,
         format::volts(report.neutral.panel_neutral_shift_v)
     );
+    let found = match report.neutral.state {
+        "loose" => "neutral found loose",
+        "open" => "neutral found open",
+        _ => "neutral intact",
+    };
     view! {
-        <h3>"At the panel"</h3>
+        <h3 data-testid="results-heading">"At the panel, as found (" {found} ")"</h3>
         <p class="neutral-line" data-testid="neutral-current">"Neutral current " <strong class="big-figure">{format::amps(report.neutral_current_a)}</strong></p>
         <p class="note">{neutral}</p>
         <table class="legs">
-            <thead><tr><th>"Leg"</th><th>"Current"</th><th>"To neutral"</th><th>"Drop"</th><th>"ANSI"</th></tr></thead>
+            <thead><tr><th>"Leg"</th><th>"Current"</th><th>"To neutral"</th><th>"Below nominal"</th><th>"Service range"</th></tr></thead>
             <tbody>{legs}</tbody>
         </table>
+        <p class="note">"Service range: the ANSI C84.1 service-voltage range at the panel (IEC 60038 on 50 Hz services). Each appliance is judged on the utilization range at its own terminals."</p>
         {notes}
         {multiwire}
         <h3>"Appliances"</h3>

@@ -2,6 +2,7 @@
 
 use super::runs::ConductorFields;
 use crate::components::{choices, NumberField, SelectField, TextField};
+use crate::edit::neutral::{self, NeutralEdit};
 use crate::edit::{self, Preset, Run, Units};
 use crate::format;
 use crate::state::AppState;
@@ -80,6 +81,7 @@ pub fn ServiceTab() -> impl IntoView {
             </fieldset>
             <ConductorFields run=Run::Hot title="Service hot conductors" toggle="Include service hot conductors" />
             <ConductorFields run=Run::Neutral title="Service neutral conductor" toggle="Give the neutral its own size (otherwise as the hots)" />
+            <NeutralFound />
             <MultiwireSection />
             <fieldset>
                 <legend>"Units"</legend>
@@ -87,6 +89,32 @@ pub fn ServiceTab() -> impl IntoView {
                     on_pick=move |v: String| state.set_units(Units::parse(&v)) testid="units" />
             </fieldset>
         </div>
+    }
+}
+
+/// The service neutral as found on site, and how that was found. The what-if explores other
+/// states without changing this.
+#[component]
+fn NeutralFound() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let n = state.draft.with_untracked(neutral::neutral_of);
+    let loose = RwSignal::new(n.state == "loose");
+    let set = move |e: NeutralEdit| state.edit(|j| neutral::apply(j, e));
+    let problem = move |path: &'static str| Signal::derive(move || state.problem(path));
+    view! {
+        <fieldset data-testid="neutral-found">
+            <legend>"Service neutral as found on site"</legend>
+            <SelectField label="State".into() options=choices(&[("intact", "Intact"), ("loose", "Loose connection"), ("open", "Open")]) selected=n.state.clone()
+                on_pick=move |v: String| { loose.set(v == "loose"); state.edit(|j| neutral::apply(j, NeutralEdit::State(v))) } testid="found-state" />
+            <Show when=move || loose.get()>
+                <NumberField label="Loose-connection resistance".into() unit="Ω".to_string() initial=state.draft.with_untracked(neutral::neutral_of).ohms
+                    problem=problem("neutral.ohms") on_text=move |t: String| set(NeutralEdit::Ohms(t)) testid="found-ohms" />
+            </Show>
+            <TextField label="How it was found (reading, date)".into() initial=n.found.clone() problem=problem("neutral.found")
+                on_text=move |t: String| set(NeutralEdit::Found(t)) testid="neutral-found-how" />
+            <NumberField label="Earth return through the grounding electrode (blank for none)".into() unit="Ω".to_string() initial=n.earth_ohms.clone()
+                problem=problem("neutral.earth_return_ohms") on_text=move |t: String| set(NeutralEdit::EarthOhms(t)) testid="neutral-earth" />
+        </fieldset>
     }
 }
 
