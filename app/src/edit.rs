@@ -287,33 +287,37 @@ pub fn set_transformer(job: &mut JobFile, on: bool) {
     };
 }
 
-/// A transformer field by name: `kva`, `primary_v`, `impedance_pct`, `x_over_r`.
-pub fn set_transformer_field(job: &mut JobFile, field: &str, text: &str) {
-    let mut t = job.transformer.given().cloned().unwrap_or_default();
-    let v = number_from_text(text);
+/// A number field of the transformer.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum TransformerField {
+    Kva,
+    PrimaryV,
+    ImpedancePct,
+    XOverR,
+    TapPct,
+}
+
+fn transformer_number(t: &mut TransformerFile, field: TransformerField) -> &mut Raw<f64> {
     match field {
-        "kva" => t.kva = v,
-        "primary_v" => t.primary_v = v,
-        "impedance_pct" => t.impedance_pct = v,
-        "x_over_r" => t.x_over_r = v,
-        "tap_pct" => t.tap_pct = v,
-        _ => return,
+        TransformerField::Kva => &mut t.kva,
+        TransformerField::PrimaryV => &mut t.primary_v,
+        TransformerField::ImpedancePct => &mut t.impedance_pct,
+        TransformerField::XOverR => &mut t.x_over_r,
+        TransformerField::TapPct => &mut t.tap_pct,
     }
+}
+
+/// Sets a transformer number as typed.
+pub fn set_transformer_field(job: &mut JobFile, field: TransformerField, text: &str) {
+    let mut t = job.transformer.given().cloned().unwrap_or_default();
+    *transformer_number(&mut t, field) = number_from_text(text);
     job.transformer = Raw::Given(t);
 }
 
-/// Reads a transformer field as text.
-pub fn transformer_text(job: &JobFile, field: &str) -> String {
-    let Some(t) = job.transformer.given() else {
-        return String::new();
-    };
-    text_of_number(match field {
-        "kva" => &t.kva,
-        "primary_v" => &t.primary_v,
-        "impedance_pct" => &t.impedance_pct,
-        "x_over_r" => &t.x_over_r,
-        _ => &t.tap_pct,
-    })
+/// Reads a transformer number as text.
+pub fn transformer_text(job: &JobFile, field: TransformerField) -> String {
+    let mut t = job.transformer.given().cloned().unwrap_or_default();
+    text_of_number(transformer_number(&mut t, field))
 }
 
 /// Which conductor run: the service hots, the service neutral, or load `i`'s branch circuit.
@@ -426,26 +430,34 @@ pub fn set_conductor_present(job: &mut JobFile, run: Run, on: bool) {
     }
 }
 
-/// Sets a conductor's material or size (text fields).
-pub fn set_conductor_text(job: &mut JobFile, run: Run, field: &str, text: &str) {
+/// A text field of a conductor.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ConductorField {
+    /// `cu` or `al`.
+    Material,
+    /// `12`, `4/0`, `250` (kcmil) or a metric size.
+    Size,
+}
+
+/// Sets a conductor's material or size.
+pub fn set_conductor_text(job: &mut JobFile, run: Run, field: ConductorField, text: &str) {
     let Some(c) = conductor_mut(job, run) else {
         return;
     };
     match field {
-        "material" => c.material = Raw::Given(text.to_string()),
-        "size" => c.size = Raw::Given(Value::String(text.to_string())),
-        _ => {}
+        ConductorField::Material => c.material = Raw::Given(text.to_string()),
+        ConductorField::Size => c.size = Raw::Given(Value::String(text.to_string())),
     }
 }
 
 /// Reads a conductor's material or size.
-pub fn conductor_text(job: &JobFile, run: Run, field: &str) -> String {
+pub fn conductor_text(job: &JobFile, run: Run, field: ConductorField) -> String {
     let Some(c) = conductor(job, run) else {
         return String::new();
     };
     match field {
-        "material" => text_of(&c.material),
-        _ => match &c.size {
+        ConductorField::Material => text_of(&c.material),
+        ConductorField::Size => match &c.size {
             Raw::Given(Value::String(s)) => s.clone(),
             Raw::Given(v) | Raw::Invalid(v) => v.to_string(),
             Raw::Absent => String::new(),
@@ -566,10 +578,21 @@ fn default_connect(job: &JobFile, appliance: &Appliance, wanted: &str) -> String
 
 /// Adds a custom resistive load.
 pub fn add_custom(job: &mut JobFile) {
+    add_custom_on(job, "L1-N");
+}
+
+/// Adds a custom 1000 W resistive load on `connect` (L1-N when the service has no such
+/// connection).
+pub fn add_custom_on(job: &mut JobFile, connect: &str) {
     let n = loads(job).len() + 1;
+    let connect = if connect_options(job).contains(&connect) {
+        connect
+    } else {
+        "L1-N"
+    };
     loads_mut(job).push(Raw::Given(LoadFile {
         name: Raw::Given(format!("Load {n}")),
-        connect: Raw::Given("L1-N".to_string()),
+        connect: Raw::Given(connect.to_string()),
         model: Raw::Given("resistive".to_string()),
         watts: Raw::Given(1000.0),
         ..LoadFile::default()
@@ -584,38 +607,53 @@ pub fn remove_load(job: &mut JobFile, i: usize) {
     }
 }
 
-/// Edits one field of load `i`: `name`, `connect`, `model` (text), `watts`, `power_factor`,
-/// `rated_v` (numbers) or `on` ("true"/"false").
-pub fn set_load_field(job: &mut JobFile, i: usize, field: &str, text: &str) {
+/// One edit of an appliance's own fields, as typed.
+#[derive(Clone, Debug, PartialEq)]
+pub enum LoadEdit {
+    Name(String),
+    /// `L1-N`, `L1-L2`, …
+    Connect(String),
+    /// `resistive`, `impedance`, `lamp`, `motor` or `electronic`; fields that only the old model
+    /// used are dropped, so they cannot be refused for a model that has no use for them.
+    Model(String),
+    Watts(String),
+    PowerFactor(String),
+    RatedV(String),
+    On(bool),
+    /// The shared-neutral circuit's id, blank for none.
+    Multiwire(String),
+}
+
+/// Applies one edit to load `i` (nothing happens when there is no such load).
+pub fn set_load(job: &mut JobFile, i: usize, edit: LoadEdit) {
     let Some(Raw::Given(load)) = loads_mut(job).get_mut(i) else {
         return;
     };
-    match field {
-        "name" => load.name = Raw::Given(text.to_string()),
-        "connect" => load.connect = Raw::Given(text.to_string()),
-        "model" => {
-            load.model = Raw::Given(text.to_string());
-            if text == "resistive" || text == "lamp" {
+    match edit {
+        LoadEdit::Name(t) => load.name = Raw::Given(t),
+        LoadEdit::Connect(t) => load.connect = Raw::Given(t),
+        LoadEdit::Model(t) => {
+            if t == "resistive" || t == "lamp" {
                 load.power_factor = Raw::Absent;
             }
-            if text != "electronic" {
+            if t != "electronic" {
                 load.input_min_v = Raw::Absent;
                 load.input_max_v = Raw::Absent;
                 load.harmonics = Raw::Absent;
             }
+            load.model = Raw::Given(t);
         }
-        "watts" => load.watts = number_from_text(text),
-        "power_factor" => load.power_factor = number_from_text(text),
-        "rated_v" => load.rated_v = number_from_text(text),
-        "on" => load.on = Raw::Given(text == "true"),
-        "multiwire" => {
-            load.multiwire = if text.trim().is_empty() {
+        LoadEdit::Watts(t) => load.watts = number_from_text(&t),
+        LoadEdit::PowerFactor(t) => load.power_factor = number_from_text(&t),
+        LoadEdit::RatedV(t) => load.rated_v = number_from_text(&t),
+        LoadEdit::On(on) => load.on = Raw::Given(on),
+        LoadEdit::Multiwire(t) => {
+            load.multiwire = if t.trim().is_empty() {
                 Raw::Absent
             } else {
-                Raw::Given(text.trim().to_string())
+                Raw::Given(t.trim().to_string())
             }
         }
-        _ => {}
     }
 }
 
@@ -674,17 +712,26 @@ pub fn remove_multiwire(job: &mut JobFile, i: usize) {
     }
 }
 
-/// Edits a shared-neutral circuit's `id`, `material`, `size` (text) or `column_c` (number).
-pub fn set_multiwire_field(job: &mut JobFile, i: usize, field: &str, text: &str) {
+/// A field of a shared-neutral circuit.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum MultiwireField {
+    Id,
+    Material,
+    Size,
+    /// The NEC Table 310.16 column, °C.
+    ColumnC,
+}
+
+/// Edits a shared-neutral circuit's field as typed.
+pub fn set_multiwire_field(job: &mut JobFile, i: usize, field: MultiwireField, text: &str) {
     let Some(Raw::Given(m)) = multiwire_mut(job).get_mut(i) else {
         return;
     };
     match field {
-        "id" => m.id = Raw::Given(text.trim().to_string()),
-        "material" => m.material = Raw::Given(text.to_string()),
-        "size" => m.size = Raw::Given(Value::String(text.to_string())),
-        "column_c" => m.column_c = number_from_text(text),
-        _ => {}
+        MultiwireField::Id => m.id = Raw::Given(text.trim().to_string()),
+        MultiwireField::Material => m.material = Raw::Given(text.to_string()),
+        MultiwireField::Size => m.size = Raw::Given(Value::String(text.to_string())),
+        MultiwireField::ColumnC => m.column_c = number_from_text(text),
     }
 }
 
@@ -760,10 +807,10 @@ mod tests {
     fn a_bad_field_is_reported_at_its_path_and_fixed_by_retyping() {
         let mut job = new_job("Test");
         add_custom(&mut job);
-        set_load_field(&mut job, 0, "watts", "lots");
+        set_load(&mut job, 0, LoadEdit::Watts("lots".into()));
         let problems = validate(&job).unwrap_err();
         assert!(problem_at(&problems, "loads[0].watts").is_some());
-        set_load_field(&mut job, 0, "watts", "1500");
+        set_load(&mut job, 0, LoadEdit::Watts("1500".into()));
         assert!(validate(&job).is_ok());
     }
 
@@ -779,7 +826,7 @@ mod tests {
         }
         set_preset(&mut job, Preset::Wye208);
         add_custom(&mut job);
-        set_load_field(&mut job, 0, "connect", "L3-N");
+        set_load(&mut job, 0, LoadEdit::Connect("L3-N".into()));
         set_preset(&mut job, Preset::Split120240);
         assert_eq!(text_of(&loads(&job)[0].connect), "L1-N");
         assert!(validate(&job).is_ok());
@@ -805,9 +852,9 @@ mod tests {
         let mut job = new_job("Test");
         add_custom(&mut job);
         add_custom(&mut job);
-        set_load_field(&mut job, 1, "connect", "L2-N");
+        set_load(&mut job, 1, LoadEdit::Connect("L2-N".into()));
         add_custom(&mut job);
-        set_load_field(&mut job, 2, "on", "false");
+        set_load(&mut job, 2, LoadEdit::On(false));
         assert_eq!(
             watts_by_group(&job),
             vec![("L1".to_string(), 1000.0), ("L2".to_string(), 1000.0)]
@@ -819,11 +866,11 @@ mod tests {
         let mut job = new_job("Test");
         add_custom(&mut job);
         add_multiwire(&mut job);
-        set_load_field(&mut job, 0, "multiwire", "A");
+        set_load(&mut job, 0, LoadEdit::Multiwire("A".into()));
         assert!(validate(&job).is_ok(), "{:?}", validate(&job).err());
-        set_load_field(&mut job, 0, "multiwire", "B");
+        set_load(&mut job, 0, LoadEdit::Multiwire("B".into()));
         assert!(problem_at(&validate(&job).unwrap_err(), "loads[0].multiwire").is_some());
-        set_load_field(&mut job, 0, "multiwire", "A");
+        set_load(&mut job, 0, LoadEdit::Multiwire("A".into()));
         remove_multiwire(&mut job, 0);
         assert!(loads(&job)[0].multiwire.is_absent());
         assert!(validate(&job).is_ok());

@@ -136,6 +136,10 @@ pub struct AppState {
     pub explore: RwSignal<Explore>,
     /// The job solved with the explored neutral (none while the job has problems).
     pub explored: Memo<Option<Explored>>,
+    /// The connection new appliances go on (`L1-N`, …), kept while several are added.
+    pub add_on: RwSignal<String>,
+    /// The appliance just added, whose line opens, scrolls into view and takes the focus.
+    pub added: RwSignal<Option<usize>>,
     /// The last edit that can be undone (balancing moves applied, an appliance removed): what it
     /// did, in words, and the job as it was before.
     pub undo: RwSignal<Option<(String, JobFile)>>,
@@ -272,6 +276,8 @@ impl AppState {
             }),
             explore,
             explored,
+            added: RwSignal::new(None),
+            add_on: RwSignal::new("L1-N".to_string()),
             undo: RwSignal::new(None),
         };
         state.load();
@@ -355,6 +361,7 @@ impl AppState {
         self.open_id.set(Some(entry.id));
         self.undo.set(None);
         self.explore.set(Explore::Open);
+        self.add_on.set("L1-N".to_string());
         self.structure.update(|s| *s += 1);
         self.tab.set(Tab::Results);
         self.screen.set(Screen::Job);
@@ -400,6 +407,20 @@ impl AppState {
         self.undoable("Moves applied to the job.".to_string(), |j| {
             edit::panel::apply_moves(j, moves)
         });
+    }
+
+    /// Adds a library appliance on `connect` (a 240 V one goes across two legs).
+    pub fn add_appliance(&self, a: &tapline_core::library::Appliance, connect: &str) {
+        self.added
+            .set(Some(self.draft.with_untracked(|d| edit::loads(d).len())));
+        self.edit_structure(|j| edit::add_appliance(j, a, connect));
+    }
+
+    /// Adds a custom load on `connect`.
+    pub fn add_custom(&self, connect: &str) {
+        self.added
+            .set(Some(self.draft.with_untracked(|d| edit::loads(d).len())));
+        self.edit_structure(|j| edit::add_custom_on(j, connect));
     }
 
     /// Removes appliance `i`, keeping the job as it was for undo.

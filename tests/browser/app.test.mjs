@@ -48,6 +48,41 @@ describe('the app shell', () => {
 });
 
 describe('jobs', () => {
+  test('eight appliances go in with one tap each onto the chosen leg; the new line is shown and focused', async () => {
+    const { context, page, seen } = await phone(env.browser, { viewport: { width: 390, height: 844 } });
+    await openApp(page, env.url);
+    let taps = 0;
+    const tap = async (sel) => { await page.click(sel); taps += 1; };
+    await tap('[data-testid=new-job]');
+    await tap('[data-testid=tab-loads]');
+    for (const id of ['kettle', 'tv', 'fridge', 'microwave']) await tap(`[data-testid=add-${id}]`);
+    await page.selectOption('[data-testid=add-target]', 'L2-N');
+    taps += 1;
+    for (const id of ['toaster', 'computer', 'led-lamp', 'dryer']) await tap(`[data-testid=add-${id}]`);
+    assert.equal(await page.locator('[data-testid=load-row]').count(), 8);
+    assert.ok(taps <= 11, `${taps} taps for eight appliances`);
+    // The chosen leg stayed chosen; the 240 V dryer went across both legs.
+    assert.equal(await page.locator('[data-testid=group-L1] [data-testid=load-row]').count(), 4);
+    assert.equal(await page.locator('[data-testid=group-L2] [data-testid=load-row]').count(), 3);
+    assert.equal(await page.locator('[data-testid=group-L1-L2] [data-testid=load-row]').count(), 1);
+    // The line just added is on screen and has the focus.
+    const focused = await page.evaluate(() => document.activeElement?.getAttribute('data-testid'));
+    assert.equal(focused, 'load-line');
+    assert.match(await page.evaluate(() => document.activeElement.textContent), /Clothes dryer|Dryer/i);
+    // On screen and not under the sticky job bar.
+    const box = await page.evaluate(() => {
+      const r = document.activeElement.getBoundingClientRect();
+      return [r.top, r.bottom, innerHeight, document.querySelector('[data-testid=job-bar]').getBoundingClientRect().bottom];
+    });
+    assert.ok(box[0] >= box[3] - 1 && box[1] <= box[2], `new line at ${box}`);
+    // Eight closed lines keep the page short.
+    const height = await page.evaluate(() => document.documentElement.scrollHeight);
+    assert.ok(height < 2600, `page is ${height} px tall`);
+    await shot(page, 'phone-eight-appliances');
+    assert.deepEqual(seen.errors, []);
+    await context.close();
+  });
+
   test('create a job, add loads from the library and see live results', async () => {
     const { context, page, seen } = await phone(env.browser);
     await openApp(page, env.url);
@@ -97,6 +132,24 @@ describe('jobs', () => {
     await page.waitForSelector('[data-testid=sweep-plot] path');
     assert.ok(await page.isVisible('[data-testid=what-if-tag]'), 'a what-if says it is one');
     await shot(page, 'phone-whatif-loose');
+    // One line per connection and voltage, each listing its appliances, with its own dash;
+    // every appliance is on a line.
+    const lines = await page.$$eval('[data-testid=plot-line]', (els) => els.map((e) => [e.textContent, e.querySelector('line').getAttribute('stroke-dasharray')]));
+    assert.equal(new Set(lines.map((l) => l[1])).size, lines.length, `dashes ${lines}`);
+    // Tick labels are at least 12 px on a phone.
+    const tick = await page.$eval('[data-testid=sweep-plot] .tick', (t) => t.getBoundingClientRect().height);
+    assert.ok(tick >= 12, `tick labels ${tick} px`);
+    // A tap near the right edge reads out every appliance with the neutral open.
+    const svg = await page.locator('[data-testid=sweep-plot] svg[role=img]').boundingBox();
+    await page.mouse.click(svg.x + svg.width - 2, svg.y + svg.height / 2);
+    assert.equal(await page.textContent('[data-testid=readout-ohms]'), 'open');
+    const rows = await page.$$eval('[data-testid=readout-row]', (els) => els.map((e) => e.textContent));
+    const names = await page.$$eval('[data-testid=plot-line]', (els) => els.map((e) => e.textContent.split(': ')[1]).join(', ').split(', '));
+    assert.equal(rows.length, names.length);
+    for (const n of names) assert.ok(rows.some((r) => r.startsWith(n)), `${n} in the readout`);
+    // The slider reads the plot too, at the solid end.
+    await page.fill('[data-testid=plot-slider]', '0');
+    assert.equal(await page.textContent('[data-testid=readout-ohms]'), '0 Ω (solid)');
     assert.deepEqual(await stored(), before, 'exploring saves nothing');
     // Results are the job as found: the loose 1.5 Ω neutral, not the 3 Ω explored.
     await page.click('[data-testid=tab-results]');
@@ -128,6 +181,8 @@ describe('jobs', () => {
     await page.click('[data-testid=tab-service]');
     await page.fill('[data-testid=job-name]', '9 Quarry Lane');
     await page.click('[data-testid=tab-loads]');
+    // Each appliance is one line; tapping it opens its details.
+    await page.locator('[data-testid=load-line]').first().click();
     await page.locator('[data-testid=load-watts]').first().fill('lots');
     assert.match(await page.locator('.field.bad .field-error').first().textContent(), /must be a number from 0.1 to/);
     await page.click('[data-testid=tab-results]');
@@ -272,13 +327,16 @@ describe('entry on site', () => {
     await page.evaluate(() => window.scrollTo(0, document.body.scrollHeight));
     const bar = await page.locator('[data-testid=job-bar]').boundingBox();
     assert.ok(bar && bar.y >= -1 && bar.y < 5, `job bar at ${bar?.y}`);
+    await page.locator('[data-testid=load-line]').last().click();
     await page.locator('[data-testid=remove-load]').last().click();
     assert.equal((await names()).length, before.length - 1);
     assert.match(await page.textContent('[data-testid=undo-edit-bar]'), /Removed “/);
     await page.click('[data-testid=undo-edit]');
     assert.deepEqual((await names()).sort(), [...before].sort());
     // A later edit ends the undo: undoing then would throw the later edit away.
+    await page.locator('[data-testid=load-line]').last().click();
     await page.locator('[data-testid=remove-load]').last().click();
+    await page.locator('[data-testid=load-line]').first().click();
     await page.locator('[data-testid=load-name]').first().fill('Kept name');
     assert.equal(await page.locator('[data-testid=undo-edit-bar]').count(), 0);
     assert.equal((await names()).length, before.length - 1);

@@ -10,11 +10,16 @@ let env;
 before(async () => { env = await start(); });
 after(async () => { await env?.browser.close(); env?.server.close(); });
 
-/** The load row whose name field holds `name`. */
+/** The load row whose name field holds `name`, opened. */
 async function rowOf(page, name) {
   const rows = page.locator('[data-testid=load-row]');
   for (let i = 0; i < await rows.count(); i += 1) {
-    if ((await rows.nth(i).locator('[data-testid=load-name]').inputValue()).startsWith(name)) return rows.nth(i);
+    const row = rows.nth(i);
+    if ((await row.locator('[data-testid=load-name]').inputValue()).startsWith(name)) {
+      // Open its details (each appliance is one line until tapped).
+      if (!(await row.locator('details.load-details').evaluate((d) => d.open))) await row.locator('[data-testid=load-line]').click();
+      return row;
+    }
   }
   throw new Error(`no load named ${name}`);
 }

@@ -181,6 +181,7 @@ describe('field tools', () => {
     await page.click('[data-testid=add-kettle]');
     await page.click('[data-testid=add-toaster]');
     const rows = page.locator('[data-testid=load-multiwire]');
+    await page.locator('[data-testid=load-line]').first().click();
     await rows.nth(0).fill('A');
     await rows.nth(1).fill('A');
     await page.click('[data-testid=tab-results]');

@@ -20,7 +20,7 @@ pub struct SizingForm {
 /// The form as it opens: the run's length and material from the job, the 75 °C column, and the
 /// NEC informational notes' targets (3 % for a branch, 5 % for the service with its branches).
 pub fn form_for(job: &JobFile, run: Run, units: Units) -> SizingForm {
-    let material = conductor_text(job, run, "material");
+    let material = conductor_text(job, run, super::ConductorField::Material);
     SizingForm {
         length: length_text(job, run, units),
         material: if material.is_empty() {

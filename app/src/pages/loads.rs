@@ -21,7 +21,8 @@ const MODELS: [(&str, &str); 5] = [
 pub fn LoadsTab() -> impl IntoView {
     let state = expect_context::<AppState>();
     let query = RwSignal::new(String::new());
-    let target = RwSignal::new("L1-N".to_string());
+    // The leg new appliances go on stays chosen while appliances are added.
+    let target = state.add_on;
     let connects = state.draft.with_untracked(edit::connect_choices);
     let library_rows = move || {
         let found = library::search(&query.get());
@@ -35,7 +36,7 @@ pub fn LoadsTab() -> impl IntoView {
                 view! {
                     <li>
                         <button class="library-pick" data-testid=format!("add-{}", a.id)
-                            on:click=move |_| state.edit_structure(|j| edit::add_appliance(j, a, &target.get_untracked()))>
+                            on:click=move |_| state.add_appliance(a, &target.get_untracked())>
                             "+ " {label}
                         </button>
                     </li>
@@ -65,10 +66,10 @@ pub fn LoadsTab() -> impl IntoView {
         <div class="tab-body" data-testid="loads-tab">
             <fieldset>
                 <legend>"Add an appliance"</legend>
-                <SelectField label="Put it on".into() options=connects selected="L1-N".to_string() on_pick=move |v: String| target.set(v) testid="add-target" />
+                <SelectField label="Put it on".into() options=connects selected=target.get_untracked() on_pick=move |v: String| target.set(v) testid="add-target" />
                 <input class="search" type="search" placeholder="Search appliances" data-testid="library-search" on:input=move |ev| query.set(event_target_value(&ev)) />
                 <ul class="library">{library_rows}</ul>
-                <button data-testid="add-custom" on:click=move |_| state.edit_structure(edit::add_custom)>"+ Custom load"</button>
+                <button data-testid="add-custom" on:click=move |_| state.add_custom(&target.get_untracked())>"+ Custom load"</button>
                 <p class="note">"Library ratings are typical values (common practice); use the nameplate when you have it."</p>
             </fieldset>
             <For each=groups key=move |(g, rows)| (state.structure.get_untracked(), g.clone(), rows.len()) let:group>
@@ -140,33 +141,74 @@ fn LoadRow(index: usize) -> impl IntoView {
             _ => None,
         })
     };
+    // The one line: name, leg chip, watts and outcome; tapping it opens the details. A line just
+    // added from the library opens, scrolls into view and takes the focus.
+    let line_ref = NodeRef::<leptos::html::Summary>::new();
+    // A line opens when it was just added, or when a field in it has a problem to show.
+    let prefix = format!("loads[{index}]");
+    let has_problem = move || {
+        state
+            .problems
+            .with(|p| p.iter().any(|p| p.path.starts_with(&prefix)))
+    };
+    let just_added = state.added.get_untracked() == Some(index) || has_problem();
+    Effect::new(move |_| {
+        if let Some(el) = line_ref.get() {
+            if state.added.get_untracked() == Some(index) {
+                el.scroll_into_view();
+                let _ = el.focus();
+                state.added.set(None);
+            }
+        }
+    });
+    let line_text = move || {
+        state.draft.with(|d| {
+            let l = edit::loads(d).get(index).cloned().unwrap_or_default();
+            (
+                edit::text_of(&l.name),
+                edit::text_of(&l.connect),
+                edit::text_of_number(&l.watts),
+            )
+        })
+    };
+    let leg_class = move || {
+        let c = line_text().1;
+        format!(
+            "chip chip-{}",
+            c.split('-').next().unwrap_or("").to_ascii_lowercase()
+        )
+    };
     view! {
         <li class="load-row" data-testid="load-row">
             <div class="load-head">
                 <label class="check big">
-                    <input type="checkbox" prop:checked=on data-testid="load-on"
-                        on:change=move |ev| { let v = event_target_checked(&ev); state.edit(|j| edit::set_load_field(j, index, "on", if v { "true" } else { "false" })) } />
-                    "On"
+                    <input type="checkbox" prop:checked=on data-testid="load-on" aria-label="On"
+                        on:change=move |ev| { let v = event_target_checked(&ev); state.edit(|j| edit::set_load(j, index, edit::LoadEdit::On(v))) } />
                 </label>
-                {outcome}
-                <button class="danger small" data-testid="remove-load" on:click=move |_| state.remove_load(index)>"Remove"</button>
-            </div>
+                <details class="load-details" open=just_added>
+                    <summary class="load-line" class:bad=has_problem data-testid="load-line" node_ref=line_ref>
+                        <span class="appliance-name">{move || line_text().0}</span>
+                        <span class=leg_class>{move || line_text().1}</span>
+                        <span class="watts">{move || format!("{} W", line_text().2)}</span>
+                        {outcome}
+                    </summary>
+                    <button class="danger small" data-testid="remove-load" on:click=move |_| state.remove_load(index)>"Remove"</button>
             <TextField label="Name".into() initial=edit::text_of(&load.name) problem=problem("name")
-                on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "name", &t)) testid="load-name" />
+                on_text=move |t: String| state.edit(|j| edit::set_load(j, index, edit::LoadEdit::Name(t))) testid="load-name" />
             <div class="two">
                 <SelectField label="Connected".into() options=connects selected=edit::text_of(&load.connect)
-                    on_pick=move |v: String| state.edit_structure(|j| edit::set_load_field(j, index, "connect", &v)) testid="load-connect" />
+                    on_pick=move |v: String| state.edit_structure(|j| edit::set_load(j, index, edit::LoadEdit::Connect(v))) testid="load-connect" />
                 <NumberField label="Watts".into() unit="W".to_string() initial=edit::text_of_number(&load.watts) problem=problem("watts")
-                    on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "watts", &t)) testid="load-watts" />
+                    on_text=move |t: String| state.edit(|j| edit::set_load(j, index, edit::LoadEdit::Watts(t))) testid="load-watts" />
             </div>
             <div class="two">
                 <SelectField label="Behaves as".into() options=models selected=edit::text_of(&load.model)
-                    on_pick=move |v: String| state.edit_structure(|j| edit::set_load_field(j, index, "model", &v)) testid="load-model" />
+                    on_pick=move |v: String| state.edit_structure(|j| edit::set_load(j, index, edit::LoadEdit::Model(v))) testid="load-model" />
                 <NumberField label="Power factor".into() initial=edit::text_of_number(&load.power_factor) problem=problem("power_factor")
-                    on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "power_factor", &t)) testid="load-pf" />
+                    on_text=move |t: String| state.edit(|j| edit::set_load(j, index, edit::LoadEdit::PowerFactor(t))) testid="load-pf" />
             </div>
             <TextField label="Shared-neutral circuit (blank if none)".into() initial=edit::text_of(&load.multiwire) problem=problem("multiwire")
-                on_text=move |t: String| state.edit(|j| edit::set_load_field(j, index, "multiwire", &t)) testid="load-multiwire" />
+                on_text=move |t: String| state.edit(|j| edit::set_load(j, index, edit::LoadEdit::Multiwire(t))) testid="load-multiwire" />
             <label class="check">
                 <input type="checkbox" prop:checked=planned data-testid="load-planned"
                     on:change=move |ev| state.edit(|j| edit::set_planned(j, index, event_target_checked(&ev))) />
@@ -177,6 +219,8 @@ fn LoadRow(index: usize) -> impl IntoView {
                 <ConductorFields run=Run::Branch(index) title="Branch circuit to this appliance" toggle="Include its branch circuit (size and length)" />
             </details>
             {is_motor.then(|| view! { <StartPanel index=index /> })}
+                </details>
+            </div>
             <p class="field-error">{move || { let p = path("connect"); state.problem(&p).unwrap_or_default() }}</p>
         </li>
     }

@@ -61,6 +61,7 @@ pub fn ResultsTab() -> impl IntoView {
     let state = expect_context::<AppState>();
     view! {
         <div class="tab-body" data-testid="results-tab">
+            <PrintHeader />
             <Show when=move || matches!(state.report.get(), Some(Ok(_)))>
                 <HomeownerSummary />
             </Show>
@@ -71,6 +72,26 @@ pub fn ResultsTab() -> impl IntoView {
             })}
             <PlanSection />
         </div>
+    }
+}
+
+/// What a printed page starts with: the job, its address or notes, the neutral as found and when
+/// it was printed (shown on paper only).
+#[component]
+fn PrintHeader() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    let printed = crate::state::taken_now();
+    move || {
+        state.draft.with(|d| {
+            let n = crate::edit::neutral::neutral_of(d);
+            view! {
+                <div class="print-only print-header" data-testid="print-header">
+                    <h2>{crate::edit::text_of(&d.name)}</h2>
+                    <p>{crate::edit::text_of(&d.notes)}</p>
+                    <p>{format!("Printed {printed} · neutral as found: {}{}", n.state, if n.found.is_empty() { String::new() } else { format!(" ({})", n.found) })}</p>
+                </div>
+            }
+        })
     }
 }
 

@@ -35,11 +35,11 @@ pub fn ConductorFields(run: Run, title: &'static str, toggle: &'static str) -> i
             </label>
             <Show when=move || present>
                 <SelectField label="Material".into() options=choices(&[("al", "Aluminum"), ("cu", "Copper")])
-                    selected=edit::conductor_text(&state.draft.get_untracked(), run, "material")
-                    on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, "material", &v)) testid=format!("{key}-material") />
+                    selected=edit::conductor_text(&state.draft.get_untracked(), run, edit::ConductorField::Material)
+                    on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, edit::ConductorField::Material, &v)) testid=format!("{key}-material") />
                 <SelectField label="Size".into() options=size_options()
-                    selected=edit::conductor_text(&state.draft.get_untracked(), run, "size")
-                    on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, "size", &v)) testid=format!("{key}-size") />
+                    selected=edit::conductor_text(&state.draft.get_untracked(), run, edit::ConductorField::Size)
+                    on_pick=move |v: String| state.edit(|j| edit::set_conductor_text(j, run, edit::ConductorField::Size, &v)) testid=format!("{key}-size") />
                 <NumberField label="One-way length".into() unit=units.code().to_string()
                     initial=edit::length_text(&state.draft.get_untracked(), run, units)
                     problem=Signal::derive({ let lp = lp.clone(); move || state.problem(&lp) })
@@ -129,8 +129,8 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
                                 <td><button class="small" data-testid="sizing-use" on:click=move |_| {
                                     let (code, material) = (code.clone(), material.clone());
                                     state.edit_structure(|j| {
-                                        edit::set_conductor_text(j, run, "material", &material);
-                                        edit::set_conductor_text(j, run, "size", &code);
+                                        edit::set_conductor_text(j, run, edit::ConductorField::Material, &material);
+                                        edit::set_conductor_text(j, run, edit::ConductorField::Size, &code);
                                     });
                                 }>"Use"</button></td>
                             </tr>

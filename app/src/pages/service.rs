@@ -68,14 +68,14 @@ pub fn ServiceTab() -> impl IntoView {
                     "Model the transformer (otherwise a stiff source at nominal voltage)"
                 </label>
                 <Show when=move || has_t>
-                    <NumberField label="Rating".into() unit="kVA".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), "kva")
-                        problem=problem("transformer.kva") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, "kva", &t)) testid="transformer-kva" />
-                    <NumberField label="Primary voltage".into() unit="V".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), "primary_v")
-                        problem=problem("transformer.primary_v") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, "primary_v", &t)) testid="transformer-primary" />
-                    <NumberField label="Impedance".into() unit="%Z".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), "impedance_pct")
-                        problem=problem("transformer.impedance_pct") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, "impedance_pct", &t)) testid="transformer-z" />
-                    <NumberField label="X/R".into() initial=edit::transformer_text(&state.draft.get_untracked(), "x_over_r")
-                        problem=problem("transformer.x_over_r") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, "x_over_r", &t)) testid="transformer-xr" />
+                    <NumberField label="Rating".into() unit="kVA".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), edit::TransformerField::Kva)
+                        problem=problem("transformer.kva") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, edit::TransformerField::Kva, &t)) testid="transformer-kva" />
+                    <NumberField label="Primary voltage".into() unit="V".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), edit::TransformerField::PrimaryV)
+                        problem=problem("transformer.primary_v") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, edit::TransformerField::PrimaryV, &t)) testid="transformer-primary" />
+                    <NumberField label="Impedance".into() unit="%Z".to_string() initial=edit::transformer_text(&state.draft.get_untracked(), edit::TransformerField::ImpedancePct)
+                        problem=problem("transformer.impedance_pct") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, edit::TransformerField::ImpedancePct, &t)) testid="transformer-z" />
+                    <NumberField label="X/R".into() initial=edit::transformer_text(&state.draft.get_untracked(), edit::TransformerField::XOverR)
+                        problem=problem("transformer.x_over_r") on_text=move |t: String| state.edit(|j| edit::set_transformer_field(j, edit::TransformerField::XOverR, &t)) testid="transformer-xr" />
                     {figures}
                 </Show>
             </fieldset>
@@ -140,15 +140,15 @@ fn MultiwireSection() -> impl IntoView {
             view! {
                 <div class="mw-row" data-testid="multiwire-row">
                     <TextField label="Circuit id (loads name it)".into() initial=edit::text_of(&m.id) problem=p("id")
-                        on_text=move |t: String| state.edit(|j| edit::set_multiwire_field(j, i, "id", &t)) testid="multiwire-id" />
+                        on_text=move |t: String| state.edit(|j| edit::set_multiwire_field(j, i, edit::MultiwireField::Id, &t)) testid="multiwire-id" />
                     <div class="two">
                         <SelectField label="Material".into() options=choices(&[("cu", "Copper"), ("al", "Aluminum")]) selected=edit::text_of(&m.material)
-                            on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, "material", &v)) testid="multiwire-material" />
+                            on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, edit::MultiwireField::Material, &v)) testid="multiwire-material" />
                         <SelectField label="Neutral size".into() options=sizes selected=size
-                            on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, "size", &v)) testid="multiwire-size" />
+                            on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, edit::MultiwireField::Size, &v)) testid="multiwire-size" />
                     </div>
                     <SelectField label="Ampacity (NEC Table 310.16)".into() options=columns selected=format!("{}", m.column_c.given().copied().unwrap_or(60.0))
-                        on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, "column_c", &v)) testid="multiwire-column" />
+                        on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, edit::MultiwireField::ColumnC, &v)) testid="multiwire-column" />
                     <button class="danger small" data-testid="remove-multiwire" on:click=move |_| state.edit_structure(|j| edit::remove_multiwire(j, i))>"Remove"</button>
                 </div>
             }
