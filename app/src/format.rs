@@ -30,6 +30,81 @@ pub fn below_nominal(drop_v: Option<f64>) -> String {
     }
 }
 
+/// A field's JSON path (`loads[2].watts`) as the screen names it: "Appliance 3 (Kettle), watts".
+/// The job gives the appliance's name when it has one.
+pub fn field_label(path: &str, job: Option<&tapline_core::job::JobFile>) -> String {
+    let word = |key: &str| -> String {
+        match key {
+            "watts" => "watts".into(),
+            "rated_v" => "rated volts".into(),
+            "power_factor" => "power factor".into(),
+            "connect" => "connected".into(),
+            "volts_to_neutral" => "volts, leg to neutral".into(),
+            "frequency_hz" => "frequency".into(),
+            "kva" => "rating (kVA)".into(),
+            "primary_v" => "primary voltage".into(),
+            "impedance_pct" => "impedance (%Z)".into(),
+            "x_over_r" => "X/R".into(),
+            "ohms" => "loose-connection resistance".into(),
+            "earth_return_ohms" => "earth return".into(),
+            "found" => "how it was found".into(),
+            "length_ft" | "length_m" => "length".into(),
+            "column_c" => "ampacity column".into(),
+            "multiwire" => "shared-neutral circuit".into(),
+            "hot" => "service hot conductors".into(),
+            other => other.replace('_', " "),
+        }
+    };
+    let mut parts = path.split('.');
+    let head = parts.next().unwrap_or_default();
+    let rest: Vec<String> = parts.map(word).collect();
+    let place = if let Some(i) = head
+        .strip_prefix("loads[")
+        .and_then(|t| t.strip_suffix(']'))
+        .and_then(|t| t.parse::<usize>().ok())
+    {
+        let name = job
+            .and_then(|j| j.loads.given())
+            .and_then(|l| l.get(i))
+            .and_then(|l| l.given())
+            .map(|l| crate::edit::text_of(&l.name))
+            .filter(|n| !n.trim().is_empty());
+        match name {
+            Some(n) => format!("Appliance {} ({n})", i + 1),
+            None => format!("Appliance {}", i + 1),
+        }
+    } else {
+        match head {
+            "system" => "System".to_string(),
+            "transformer" => "Transformer".to_string(),
+            "service" => "Service".to_string(),
+            "neutral" => "Neutral as found".to_string(),
+            "name" => "Job name".to_string(),
+            "notes" => "Address or notes".to_string(),
+            other => {
+                let mut w = word(other);
+                if let Some(c) = w.get_mut(0..1) {
+                    c.make_ascii_uppercase();
+                }
+                w
+            }
+        }
+    };
+    if rest.is_empty() {
+        place
+    } else {
+        format!("{place}, {}", rest.join(", "))
+    }
+}
+
+/// A problem as a person reads it: the field as the screen names it, then what is wrong.
+pub fn problem_text(
+    p: &tapline_core::validate::Problem,
+    job: Option<&tapline_core::job::JobFile>,
+) -> String {
+    format!("{}: {}", field_label(&p.path, job), p.message)
+}
+
 /// A plain number with a fixed number of decimals.
 pub fn fixed(v: f64, decimals: usize) -> String {
     format!("{v:.decimals$}")
@@ -143,6 +218,29 @@ mod tests {
         assert_eq!(below_nominal(Some(-1.3)), "1.3 V above");
         assert_eq!(below_nominal(Some(-0.01)), "0.0 V");
         assert_eq!(below_nominal(None), "—");
+    }
+
+    #[test]
+    fn fields_are_named_as_the_screen_names_them() {
+        let job = tapline_core::job::parse_job(tapline_core::demo::DEMO_JOB).unwrap();
+        assert_eq!(
+            field_label("loads[0].watts", Some(&job)),
+            "Appliance 1 (Electric kettle), watts"
+        );
+        assert_eq!(
+            field_label("loads[7].rated_v", None),
+            "Appliance 8, rated volts"
+        );
+        assert_eq!(
+            field_label("neutral.ohms", None),
+            "Neutral as found, loose-connection resistance"
+        );
+        assert_eq!(
+            field_label("service.hot.length_ft", None),
+            "Service, service hot conductors, length"
+        );
+        assert_eq!(field_label("name", None), "Job name");
+        assert_eq!(field_label("readings", None), "Readings");
     }
 
     #[test]

@@ -244,8 +244,8 @@ describe('jobs', () => {
     await page.setInputFiles('[data-testid=import-file]', broken);
     await page.waitForSelector('[data-testid=import-problems]');
     const text = await page.textContent('[data-testid=import-problems]');
-    assert.match(text, /loads\[0\]\.connect/);
-    assert.match(text, /loads\[0\]\.watts: must be a number from 0.1 to/);
+    assert.match(text, /Appliance 1, connected: /);
+    assert.match(text, /Appliance 1, watts: must be a number from 0.1 to/);
     assert.equal(await page.locator('[data-testid=job-card]').count(), 2);
     await shot(page, 'phone-import-error');
     await context.close();

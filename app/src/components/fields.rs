@@ -5,6 +5,37 @@
 
 use leptos::prelude::*;
 
+/// A field's problem, shown once the person has typed in the field or left it, so a form is not
+/// red before anyone touched it. A field that comes back already holding a value with a problem
+/// (a draft restored after a reload) counts as touched.
+#[derive(Clone, Copy)]
+struct Shown {
+    touched: RwSignal<bool>,
+    problem: Signal<Option<String>>,
+}
+
+impl Shown {
+    fn touch(self) {
+        if !self.touched.get_untracked() {
+            self.touched.set(true);
+        }
+    }
+    fn get(self) -> Option<String> {
+        if self.touched.get() {
+            self.problem.get()
+        } else {
+            None
+        }
+    }
+}
+
+fn shown_after_touch(problem: Signal<Option<String>>, initial: &str) -> Shown {
+    Shown {
+        touched: RwSignal::new(!initial.trim().is_empty() && problem.get_untracked().is_some()),
+        problem,
+    }
+}
+
 /// A labelled number input with the validation message for its JSON path.
 #[component]
 pub fn NumberField(
@@ -16,8 +47,9 @@ pub fn NumberField(
     #[prop(into)] testid: String,
     #[prop(optional, into)] unit: String,
 ) -> impl IntoView {
+    let shown = shown_after_touch(problem, &initial);
     view! {
-        <label class="field" class:bad=move || problem.get().is_some()>
+        <label class="field" class:bad=move || shown.get().is_some()>
             <span class="field-label">{label}</span>
             <span class="field-row">
                 <input
@@ -26,11 +58,12 @@ pub fn NumberField(
                     autocomplete="off"
                     prop:value=initial
                     data-testid=testid
-                    on:input=move |ev| on_text.run(event_target_value(&ev))
+                    on:input=move |ev| { shown.touch(); on_text.run(event_target_value(&ev)) }
+                    on:blur=move |_| shown.touch()
                 />
                 <span class="unit">{unit}</span>
             </span>
-            <span class="field-error" role="alert">{move || problem.get().unwrap_or_default()}</span>
+            <span class="field-error" role="alert">{move || shown.get().unwrap_or_default()}</span>
         </label>
     }
 }
@@ -44,11 +77,13 @@ pub fn TextField(
     #[prop(into)] on_text: Callback<String>,
     #[prop(into)] testid: String,
 ) -> impl IntoView {
+    let shown = shown_after_touch(problem, &initial);
     view! {
-        <label class="field" class:bad=move || problem.get().is_some()>
+        <label class="field" class:bad=move || shown.get().is_some()>
             <span class="field-label">{label}</span>
-            <input type="text" prop:value=initial data-testid=testid on:input=move |ev| on_text.run(event_target_value(&ev)) />
-            <span class="field-error" role="alert">{move || problem.get().unwrap_or_default()}</span>
+            <input type="text" prop:value=initial data-testid=testid on:blur=move |_| shown.touch()
+                on:input=move |ev| { shown.touch(); on_text.run(event_target_value(&ev)) } />
+            <span class="field-error" role="alert">{move || shown.get().unwrap_or_default()}</span>
         </label>
     }
 }

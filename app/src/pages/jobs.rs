@@ -22,8 +22,17 @@ pub fn JobsPage() -> impl IntoView {
             let text = files::read_chosen(&input).await;
             input.set_value("");
             match text.map_err(|e| vec![e]).and_then(|t| {
-                tapline_core::load_job(&t)
-                    .map_err(|e| e.to_string().lines().map(str::to_string).collect())
+                tapline_core::load_job(&t).map_err(|e| match e {
+                    // Each problem named as the screen names the field.
+                    tapline_core::EngineError::Invalid(problems) => {
+                        let file = tapline_core::job::parse_job(&t).ok();
+                        problems
+                            .iter()
+                            .map(|p| crate::format::problem_text(p, file.as_ref()))
+                            .collect()
+                    }
+                    other => other.to_string().lines().map(str::to_string).collect(),
+                })
             }) {
                 Ok((file, _)) => {
                     state.import_problems.set(Vec::new());

@@ -13,7 +13,7 @@ pub fn ProblemList() -> impl IntoView {
     view! {
         <div class="problems" role="alert" data-testid="problems">
             <strong>"Fix these fields to see results (the last good version stays saved):"</strong>
-            <ul>{move || state.problems.get().into_iter().map(|p| view! { <li>{p.to_string()}</li> }).collect_view()}</ul>
+            <ul>{move || state.draft.with(|d| state.problems.get().iter().map(|p| view! { <li>{format::problem_text(p, Some(d))}</li> }).collect_view())}</ul>
         </div>
     }
 }
