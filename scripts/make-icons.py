@@ -1,6 +1,9 @@
 #!/usr/bin/env python3
 """Draws Tapline's icons (an original mark: a winding with two legs and a center tap) as PNGs.
 
+The mark is one colour (white on navy): a coloured tap could read as a conductor colour, and
+North American practice keeps colour for white or grey neutrals and black and red hots.
+
 Pure standard library, so it runs anywhere: `python3 scripts/make-icons.py`. The PNGs it writes
 are committed under public/icons/; run it again only to change the design.
 """
@@ -10,7 +13,6 @@ from pathlib import Path
 
 NAVY = (16, 36, 62)
 WHITE = (245, 247, 250)
-AMBER = (255, 183, 3)
 
 
 def draw(size, pad):
@@ -42,9 +44,9 @@ def draw(size, pad):
     # The two legs.
     rect(p(0.09), p(0.28), p(0.16), p(0.86), WHITE)
     rect(p(0.84), p(0.28), p(0.91), p(0.86), WHITE)
-    # The center tap, in amber: the neutral.
-    rect(p(0.465), p(0.31), p(0.535), p(0.86), AMBER)
-    disc(p(0.5), p(0.86), 0.06 * s, AMBER)
+    # The center tap (the neutral), narrower than the legs so it reads without colour.
+    rect(p(0.475), p(0.31), p(0.525), p(0.86), WHITE)
+    disc(p(0.5), p(0.86), 0.05 * s, WHITE)
     return px
 
 

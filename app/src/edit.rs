@@ -741,24 +741,6 @@ pub fn group_of(load: &LoadFile) -> String {
     c.strip_suffix("-N").map(str::to_string).unwrap_or(c)
 }
 
-/// Rated watts of the loads switched on, per group, in the order the groups first appear.
-pub fn watts_by_group(job: &JobFile) -> Vec<(String, f64)> {
-    let mut out: Vec<(String, f64)> = Vec::new();
-    for l in loads(job) {
-        if l.on.given() == Some(&false) {
-            continue;
-        }
-        let g = group_of(&l);
-        let w = l.watts.given().copied().unwrap_or(0.0);
-        match out.iter_mut().find(|(k, _)| *k == g) {
-            Some((_, t)) => *t += w,
-            None => out.push((g, w)),
-        }
-    }
-    out.sort_by(|a, b| a.0.cmp(&b.0));
-    out
-}
-
 /// The message for a field, if validation found a problem at exactly that path.
 pub fn problem_at(problems: &[Problem], path: &str) -> Option<String> {
     problems
@@ -845,20 +827,6 @@ mod tests {
         set_length(&mut job, Run::Hot, "-4", Units::Feet);
         let problems = validate(&job).unwrap_err();
         assert!(problem_at(&problems, &length_path(Run::Hot, Units::Feet)).is_some());
-    }
-
-    #[test]
-    fn totals_by_leg_skip_loads_switched_off() {
-        let mut job = new_job("Test");
-        add_custom(&mut job);
-        add_custom(&mut job);
-        set_load(&mut job, 1, LoadEdit::Connect("L2-N".into()));
-        add_custom(&mut job);
-        set_load(&mut job, 2, LoadEdit::On(false));
-        assert_eq!(
-            watts_by_group(&job),
-            vec![("L1".to_string(), 1000.0), ("L2".to_string(), 1000.0)]
-        );
     }
 
     #[test]

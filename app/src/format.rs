@@ -105,6 +105,23 @@ pub fn problem_text(
     format!("{}: {}", field_label(&p.path, job), p.message)
 }
 
+/// The total line of a group of appliances (`L1`, or `L1-L2` for those across two legs): the
+/// rated watts of those switched on, from the report's loads, and the leg's present current.
+pub fn group_total(report: &Report, group: &str) -> String {
+    let watts: f64 = report
+        .loads
+        .iter()
+        .filter(|l| l.on && l.connect.strip_suffix("-N").unwrap_or(&l.connect) == group)
+        .map(|l| l.rated_w)
+        .sum();
+    let leg = report
+        .legs
+        .get(group)
+        .map(|l| format!(" · leg now {}", amps(l.current_a)))
+        .unwrap_or_default();
+    format!("{watts:.0} W rated on{leg}")
+}
+
 /// A plain number with a fixed number of decimals.
 pub fn fixed(v: f64, decimals: usize) -> String {
     format!("{v:.decimals$}")
@@ -241,6 +258,24 @@ mod tests {
         );
         assert_eq!(field_label("name", None), "Job name");
         assert_eq!(field_label("readings", None), "Readings");
+    }
+
+    #[test]
+    fn group_totals_count_the_appliances_switched_on() {
+        let job = tapline_core::load_job(
+            r#"{"version": 1, "name": "t",
+                "system": {"kind": "split-phase", "volts_to_neutral": 120, "frequency_hz": 60},
+                "loads": [
+                  {"name": "A", "connect": "L1-N", "model": "resistive", "watts": 1000, "rated_v": 120},
+                  {"name": "B", "connect": "L1-N", "model": "resistive", "watts": 500, "rated_v": 120, "on": false},
+                  {"name": "C", "connect": "L1-L2", "model": "resistive", "watts": 4000, "rated_v": 240}]}"#,
+        )
+        .unwrap()
+        .1;
+        let r = tapline_core::report::analyze(&job).unwrap();
+        // L1 carries A (1000 W / 120 V = 8.33 A) and C (4000 W / 240 V = 16.67 A): 25.0 A.
+        assert_eq!(group_total(&r, "L1"), "1000 W rated on · leg now 25.0 A");
+        assert_eq!(group_total(&r, "L1-L2"), "4000 W rated on");
     }
 
     #[test]

@@ -210,7 +210,18 @@ impl AppState {
             valid.with(|v| {
                 let job = v.as_ref().ok()?;
                 let neutral = match file.map(|f| what_if_neutral(&f)) {
-                    None => job.neutral(),
+                    // The neutral as found is the job's own report: no second solve.
+                    None => {
+                        return report.with(|r| {
+                            r.as_ref().map(|r| match r {
+                                Ok(rep) => Explored::Ready {
+                                    neutral: job.neutral(),
+                                    report: Box::new(rep.clone()),
+                                },
+                                Err(e) => Explored::Failed(e.clone()),
+                            })
+                        })
+                    }
                     Some(Ok(n)) => n,
                     Some(Err(p)) => {
                         return Some(Explored::Field(

@@ -120,11 +120,16 @@ describe('jobs', () => {
     await page.click('[data-testid=tab-whatif]');
     assert.ok(await page.isVisible('[data-testid=caution-gate]'), 'cautions come first');
     await page.click('[data-testid=accept-cautions]');
-    assert.match(await page.textContent('[data-testid=neutral-as-found]'), /as found on site: loose, 1\.5 Ω \(lights dim/);
+    assert.match(await page.textContent('[data-testid=neutral-found-line]'), /as found on site: loose, 1\.5 Ω \(lights dim/);
     // The what-if opens on an open neutral.
     assert.match(await page.textContent('[data-testid=what-if-heading]'), /If the neutral opens/);
     const ifOpen = await page.$$eval('[data-testid=what-if-appliance]', (els) => els.map((e) => e.getAttribute('data-outcome')));
     assert.ok(ifOpen.includes('likely_damage'), `outcomes if open: ${ifOpen}`);
+    assert.ok(await page.isVisible('[data-testid=what-if-tag]'), 'a what-if says it is one');
+    // "As found" is the job's own state, and is not called a what-if.
+    await page.click('[data-testid=neutral-as-found]');
+    assert.match(await page.textContent('[data-testid=what-if-heading]'), /As found: neutral loose, 1\.5 Ω/);
+    assert.equal(await page.isVisible('[data-testid=what-if-tag]'), false);
     await page.click('[data-testid=neutral-loose]');
     await page.fill('[data-testid=neutral-ohms]', 'lots');
     assert.match(await page.textContent('[data-testid=whatif-tab] .field-error'), /Loose-connection resistance: must be a number from 0 to/);

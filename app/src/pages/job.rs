@@ -37,7 +37,7 @@ pub fn JobPage() -> impl IntoView {
                 </div>
                 <nav class="tabs">
                     {tab_button(Tab::Service, "Service", "tab-service")}
-                    {tab_button(Tab::Loads, "Loads", "tab-loads")}
+                    {tab_button(Tab::Loads, "Appliances", "tab-loads")}
                     {tab_button(Tab::Results, "Results", "tab-results")}
                     {tab_button(Tab::WhatIf, "What-if", "tab-whatif")}
                     {tab_button(Tab::Panel, "Panel", "tab-panel")}

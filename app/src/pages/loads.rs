@@ -69,7 +69,7 @@ pub fn LoadsTab() -> impl IntoView {
                 <SelectField label="Put it on".into() options=connects selected=target.get_untracked() on_pick=move |v: String| target.set(v) testid="add-target" />
                 <input class="search" type="search" placeholder="Search appliances" data-testid="library-search" on:input=move |ev| query.set(event_target_value(&ev)) />
                 <ul class="library">{library_rows}</ul>
-                <button data-testid="add-custom" on:click=move |_| state.add_custom(&target.get_untracked())>"+ Custom load"</button>
+                <button data-testid="add-custom" on:click=move |_| state.add_custom(&target.get_untracked())>"+ Custom appliance"</button>
                 <p class="note">"Library ratings are typical values (common practice); use the nameplate when you have it."</p>
             </fieldset>
             <For each=groups key=move |(g, rows)| (state.structure.get_untracked(), g.clone(), rows.len()) let:group>
@@ -83,22 +83,12 @@ pub fn LoadsTab() -> impl IntoView {
 fn LoadGroup(name: String, rows: Vec<usize>) -> impl IntoView {
     let state = expect_context::<AppState>();
     let key = name.clone();
+    // Totals from the engine's report (the validated job), so they never disagree with the results.
     let total = move || {
-        let watts = state
-            .draft
-            .with(edit::watts_by_group)
-            .into_iter()
-            .find(|(g, _)| *g == key)
-            .map(|(_, w)| w)
-            .unwrap_or(0.0);
-        let amps = state.report.with(|r| match r {
-            Some(Ok(rep)) => rep.legs.get(&key).map(|l| crate::format::amps(l.current_a)),
-            _ => None,
-        });
-        format!(
-            "{watts:.0} W rated on{}",
-            amps.map(|a| format!(" · leg now {a}")).unwrap_or_default()
-        )
+        state.report.with(|r| match r {
+            Some(Ok(rep)) => crate::format::group_total(rep, &key),
+            _ => "Totals once the fields are fixed".to_string(),
+        })
     };
     let label = if name.contains('-') {
         format!("Across {name}")

@@ -135,7 +135,7 @@ fn WhatIfBody() -> impl IntoView {
     });
     view! {
         <p class="warning">"An open or loose neutral is a hazard: these are estimates to explain it, not a reason to leave it. Verify with a meter."</p>
-        <p class="found" data-testid="neutral-as-found">
+        <p class="found" data-testid="neutral-found-line">
             {move || {
                 let n = state.draft.with(edit::neutral::neutral_of);
                 let how = if n.found.is_empty() { String::new() } else { format!(" ({})", n.found) };
