@@ -8,13 +8,15 @@ pub mod components;
 pub mod edit;
 pub mod files;
 pub mod format;
+pub mod nav;
 pub mod pages;
 pub mod plot;
+pub mod route;
 pub mod state;
 pub mod storage;
 
 use leptos::prelude::*;
-use pages::{cautions::CautionsPage, job::JobPage, jobs::JobsPage};
+use pages::{cautions::CautionsPage, job::JobPage, jobs::JobsPage, jobs::MissingPage};
 use state::{AppState, Screen};
 
 /// The whole app.
@@ -22,6 +24,7 @@ use state::{AppState, Screen};
 pub fn App() -> impl IntoView {
     let state = AppState::new();
     provide_context(state);
+    nav::start(state);
     // Another tab saved or deleted a job: the list shows what is stored now. (An open job's own
     // save checks its revision, see `state::check_save`.)
     let _ = window_event_listener(leptos::ev::storage, move |ev| {
@@ -34,7 +37,7 @@ pub fn App() -> impl IntoView {
         <header>
             <div class="top">
                 <h1 data-testid="app-title">"Tapline"</h1>
-                <button class="caution-link" data-testid="open-cautions" on:click=move |_| state.screen.set(Screen::Cautions)>"⚠ Cautions"</button>
+                <button class="caution-link" data-testid="open-cautions" on:click=move |_| state.go(route::Route::Cautions)>"⚠ Cautions"</button>
             </div>
             <p class="caution-line" data-testid="caution-line">"Live equipment can kill. Verify with a meter; work by qualified persons under local code."</p>
         </header>
@@ -51,6 +54,7 @@ pub fn App() -> impl IntoView {
                 Screen::Jobs => view! { <JobsPage /> }.into_any(),
                 Screen::Job => view! { <JobPage /> }.into_any(),
                 Screen::Cautions => view! { <CautionsPage /> }.into_any(),
+                Screen::Missing => view! { <MissingPage /> }.into_any(),
             }}
         </main>
     }

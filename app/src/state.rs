@@ -3,6 +3,8 @@
 
 use crate::edit;
 use crate::edit::neutral::Explore;
+use crate::nav;
+use crate::route::Route;
 use crate::storage::{self, Settings, StoredJob};
 use leptos::prelude::*;
 use tapline_core::job::{JobFile, Raw};
@@ -23,6 +25,8 @@ pub enum Screen {
     Jobs,
     Job,
     Cautions,
+    /// An address named a job that is not on this phone.
+    Missing,
 }
 
 /// Which part of a job is showing.
@@ -105,6 +109,8 @@ pub struct AppState {
     /// Bumped when loads are added or removed or a job is opened, so forms re-read their values.
     pub structure: RwSignal<u64>,
     pub screen: RwSignal<Screen>,
+    /// Where the person is, as the address says (see [`crate::route`]).
+    pub route: RwSignal<Route>,
     pub tab: RwSignal<Tab>,
     pub banners: RwSignal<Vec<Notice>>,
     pub settings: RwSignal<Settings>,
@@ -261,6 +267,7 @@ impl AppState {
             draft,
             structure: RwSignal::new(0),
             screen: RwSignal::new(Screen::Jobs),
+            route: RwSignal::new(Route::Jobs),
             tab: RwSignal::new(Tab::Results),
             banners: RwSignal::new(Vec::new()),
             base: RwSignal::new(None),
@@ -353,8 +360,44 @@ impl AppState {
         );
     }
 
-    /// Opens a saved job in the editor.
-    pub fn open(&self, id: &str) {
+    /// Follows an address: the screen, the job and the tab it names. A job that is not in the
+    /// list (deleted, or never on this phone) shows the screen that says so.
+    pub fn apply_route(&self, route: Route) {
+        let screen = match &route {
+            Route::Jobs => Screen::Jobs,
+            Route::Cautions => Screen::Cautions,
+            Route::Job { id, tab, .. } => {
+                if self.jobs.with_untracked(|j| j.iter().any(|e| &e.id == id)) {
+                    if self
+                        .open_id
+                        .with_untracked(|o| o.as_deref() != Some(id.as_str()))
+                    {
+                        self.open(id);
+                    }
+                    if self.tab.get_untracked() != *tab {
+                        self.tab.set(*tab);
+                    }
+                    Screen::Job
+                } else {
+                    Screen::Missing
+                }
+            }
+        };
+        if self.screen.get_untracked() != screen {
+            self.screen.set(screen);
+        }
+        if self.route.with_untracked(|r| *r != route) {
+            self.route.set(route);
+        }
+    }
+
+    /// Goes to a place (a new entry in the browser's history).
+    pub fn go(&self, route: Route) {
+        nav::go(*self, route);
+    }
+
+    /// Loads a saved job into the editor (the address decides which tab shows).
+    fn open(&self, id: &str) {
         let Some(entry) = self
             .jobs
             .with_untracked(|j| j.iter().find(|e| e.id == id).cloned())
@@ -374,15 +417,13 @@ impl AppState {
         self.explore.set(Explore::Open);
         self.add_on.set("L1-N".to_string());
         self.structure.update(|s| *s += 1);
-        self.tab.set(Tab::Results);
-        self.screen.set(Screen::Job);
     }
 
     /// Adds a job to the list and storage (a new id: nothing existing is overwritten) and opens it.
     /// When the browser refuses to store it (full), the job is not listed, since it would be gone
     /// after a reload, and the person is told; without storage at all it opens unsaved, as the
     /// banner about storage says.
-    pub fn add_and_open(&self, job: JobFile) {
+    pub fn add_and_open(&self, job: JobFile, tab: Tab) {
         let name = edit::text_of(&job.name);
         let entry = Entry {
             id: new_id(),
@@ -401,7 +442,7 @@ impl AppState {
         }
         let id = entry.id.clone();
         self.jobs.update(|j| j.insert(0, entry));
-        self.open(&id);
+        self.go(Route::job(&id, tab));
     }
 
     /// Starts a job for a quick diagnosis: a new job with one dated set of readings, opened on its
@@ -409,8 +450,7 @@ impl AppState {
     pub fn new_diagnosis(&self) {
         let mut job = edit::new_job("Neutral diagnosis");
         edit::readings::add_set(&mut job, &taken_now(), "first test");
-        self.add_and_open(job);
-        self.tab.set(Tab::Readings);
+        self.add_and_open(job, Tab::Readings);
     }
 
     /// Applies the balancing moves to the job, keeping the job as it was for undo.
@@ -448,14 +488,24 @@ impl AppState {
     }
 
     fn undoable(&self, what: String, f: impl FnOnce(&mut JobFile)) {
+        self.close_detail();
         let before = self.draft.get_untracked();
         self.edit_structure(f);
         self.undo.set(Some((what, before)));
     }
 
+    /// An appliance's address stops naming anything once the list changes under it.
+    fn close_detail(&self) {
+        let route = self.route.get_untracked();
+        if route.detail().is_some() {
+            nav::replace_with(*self, route.without_detail());
+        }
+    }
+
     /// Puts the job back as it was before the last undoable edit.
     pub fn undo_edit(&self) {
         if let Some((_, job)) = self.undo.get_untracked() {
+            self.close_detail();
             self.undo.set(None);
             self.edit_structure(|j| *j = job);
         }
@@ -587,7 +637,7 @@ impl AppState {
                 storage::clear_draft(&id);
                 self.jobs.update(|jobs| jobs.retain(|e| e.id != id));
                 self.open_id.set(None);
-                self.screen.set(Screen::Jobs);
+                self.go(Route::Jobs);
             }
             None => {}
         }

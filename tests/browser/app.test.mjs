@@ -161,7 +161,7 @@ describe('jobs', () => {
     const asFound = await page.$$eval('[data-testid=appliance-result]', (els) => els.map((e) => e.getAttribute('data-outcome')));
     assert.ok(!asFound.includes('stall'), `outcomes as found: ${asFound}`);
     await page.reload();
-    await page.click('[data-testid=open-job]');
+    await page.waitForSelector('[data-testid=results-tab]');
     assert.deepEqual(await stored(), before, 'nor after a reload');
     // Recording the neutral as found open is an edit of the job, on the Service tab.
     await page.click('[data-testid=tab-service]');
@@ -193,15 +193,15 @@ describe('jobs', () => {
     await page.click('[data-testid=tab-results]');
     assert.ok(await page.isVisible('[data-testid=problems]'));
     await page.reload();
-    await page.waitForSelector('[data-testid=job-card]');
-    assert.match(await page.textContent('[data-testid=job-card]'), /9 Quarry Lane/);
+    // A reload keeps the screen: the same job, on the results, with its problems.
+    await page.waitForSelector('[data-testid=problems]');
+    assert.equal(await page.textContent('[data-testid=job-title]'), '9 Quarry Lane');
     // The saved job is the last valid version; the draft is kept beside it.
     const saved = await page.evaluate(() => {
       const key = Object.keys(localStorage).find((k) => k.startsWith('tapline.v1.job.'));
       return JSON.parse(localStorage.getItem(key)).job.loads[0].watts;
     });
     assert.equal(saved, 1500);
-    await page.click('[data-testid=open-job]');
     await page.click('[data-testid=tab-loads]');
     assert.equal(await page.locator('[data-testid=load-watts]').first().inputValue(), 'lots');
     assert.match(await page.locator('.field.bad .field-error').first().textContent(), /must be a number from 0.1 to/);

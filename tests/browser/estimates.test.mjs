@@ -112,8 +112,8 @@ describe('estimates', () => {
     await shot(page, 'phone-plan');
 
     await page.reload();
-    await page.waitForSelector('[data-testid=job-card]');
-    await page.click('[data-testid=open-job]');
+    // A reload keeps the screen: the same job.
+    await page.waitForSelector('[data-testid=job-page]');
     await page.click('[data-testid=tab-results]');
     await page.waitForSelector('[data-testid=plan]');
     const [download] = await Promise.all([page.waitForEvent('download'), page.click('[data-testid=export-open-job]')]);

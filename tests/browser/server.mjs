@@ -16,13 +16,18 @@ const TYPES = {
   '.svg': 'image/svg+xml',
 };
 
-/** Starts serving `root` on 127.0.0.1:`port` (0 picks a free port); resolves to the server. */
-export function serve(root, port = 0) {
+/** Starts serving `root` on 127.0.0.1:`port` (0 picks a free port) under the sub-path `prefix`
+ *  (as a static host would serve the app from a folder); resolves to the server. */
+export function serve(root, port = 0, prefix = '/') {
   const base = resolve(root);
   const server = createServer(async (req, res) => {
     try {
       const url = new URL(req.url, 'http://127.0.0.1');
-      let path = normalize(join(base, decodeURIComponent(url.pathname)));
+      if (!url.pathname.startsWith(prefix)) {
+        res.writeHead(404).end('not found');
+        return;
+      }
+      let path = normalize(join(base, decodeURIComponent(url.pathname.slice(prefix.length - 1))));
       if (!path.startsWith(base)) {
         res.writeHead(403).end();
         return;

@@ -42,8 +42,8 @@ describe('field tools', () => {
 
     // The readings survive a reload: they were saved with the job.
     await page.reload();
-    await page.waitForSelector('[data-testid=job-card]');
-    await page.click('[data-testid=open-job]');
+    // A reload keeps the screen: the same job.
+    await page.waitForSelector('[data-testid=job-page]');
     await page.click('[data-testid=tab-readings]');
     assert.equal(await page.locator('[data-testid=reading]').nth(1).locator('[data-testid=reading-v2]').inputValue(), '124.1');
     assert.equal(await page.getAttribute('[data-testid=diagnosis]', 'data-verdict'), 'suspect');
@@ -135,8 +135,8 @@ describe('field tools', () => {
 
     // Reload and find the panel as it was left.
     await page.reload();
-    await page.waitForSelector('[data-testid=job-card]');
-    await page.click('[data-testid=open-job]');
+    // A reload keeps the screen: the same job.
+    await page.waitForSelector('[data-testid=job-page]');
     await page.click('[data-testid=tab-panel]');
     await page.waitForSelector('[data-testid=no-moves]');
     assert.deepEqual(await page.locator('[data-testid=schedule-line]').evaluateAll((els) => els.map((e) => [e.dataset.positions, e.dataset.leg])), applied);

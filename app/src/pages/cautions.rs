@@ -1,21 +1,13 @@
 //! The cautions screen, one tap away from everywhere.
 
 use crate::components::CautionList;
-use crate::state::{AppState, Screen};
+
 use leptos::prelude::*;
 
 #[component]
 pub fn CautionsPage() -> impl IntoView {
-    let state = expect_context::<AppState>();
-    let back = move |_| {
-        state
-            .screen
-            .set(if state.open_id.get_untracked().is_some() {
-                Screen::Job
-            } else {
-                Screen::Jobs
-            })
-    };
+    // Back to wherever the cautions were opened from (the job list when opened by a link).
+    let back = move |_| crate::nav::back();
     view! {
         <section class="page" data-testid="cautions-page">
             <h2>"Before you work"</h2>

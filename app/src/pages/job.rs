@@ -6,7 +6,8 @@ use super::{
 };
 use crate::edit;
 use crate::files;
-use crate::state::{AppState, Conflict, Screen, Tab};
+use crate::route::Route;
+use crate::state::{AppState, Conflict, Tab};
 use leptos::prelude::*;
 use tapline_core::job::job_to_json;
 
@@ -15,7 +16,7 @@ pub fn JobPage() -> impl IntoView {
     let state = expect_context::<AppState>();
     let tab_button = move |tab: Tab, label: &'static str, testid: &'static str| {
         view! {
-            <button class="tab" class:active=move || state.tab.get() == tab data-testid=testid on:click=move |_| state.tab.set(tab)>{label}</button>
+            <button class="tab" class:active=move || state.tab.get() == tab data-testid=testid on:click=move |_| { if let Some(id) = state.open_id.get_untracked() { state.go(Route::job(&id, tab)) } }>{label}</button>
         }
     };
     let export = move |_| {
@@ -31,7 +32,7 @@ pub fn JobPage() -> impl IntoView {
             // away from anywhere in a long list.
             <div class="job-bar" data-testid="job-bar">
                 <div class="job-head">
-                    <button data-testid="back-to-jobs" on:click=move |_| state.screen.set(Screen::Jobs)>"‹ Jobs"</button>
+                    <button data-testid="back-to-jobs" on:click=move |_| state.go(Route::Jobs)>"‹ Jobs"</button>
                     <h2 data-testid="job-title">{move || state.draft.with(|d| edit::text_of(&d.name))}</h2>
                     <button data-testid="export-open-job" on:click=export>"Export"</button>
                 </div>

@@ -36,7 +36,7 @@ pub fn JobsPage() -> impl IntoView {
             }) {
                 Ok((file, _)) => {
                     state.import_problems.set(Vec::new());
-                    state.add_and_open(file);
+                    state.add_and_open(file, crate::state::Tab::Results);
                 }
                 Err(lines) => state.import_problems.set(lines),
             }
@@ -64,7 +64,7 @@ pub fn JobsPage() -> impl IntoView {
     view! {
         <section class="page" data-testid="jobs-page">
             <div class="actions">
-                <button class="primary" data-testid="new-job" on:click=move |_| state.add_and_open(edit::new_job("New job"))>"New job"</button>
+                <button class="primary" data-testid="new-job" on:click=move |_| state.add_and_open(edit::new_job("New job"), crate::state::Tab::Loads)>"New job"</button>
                 <label class="button">
                     "Import job"
                     <input type="file" accept=".json,application/json" class="hidden-file" data-testid="import-file" node_ref=file_input on:change=on_import />
@@ -110,7 +110,7 @@ fn JobCard(entry: Entry, offset: f64) -> impl IntoView {
     let export_text = job_to_json(&entry.stored.job);
     view! {
         <li class="job-card" data-testid="job-card">
-            <button class="job-open" data-testid="open-job" on:click=move |_| state.open(&id.get_value())>
+            <button class="job-open" data-testid="open-job" on:click=move |_| state.go(crate::route::Route::job(&id.get_value(), crate::state::Tab::Results))>
                 <span class="job-name">{name.clone()}</span>
                 <span class="job-notes">{notes}</span>
                 <span class="job-status" data-testid="job-status">{status}</span>
@@ -131,5 +131,18 @@ fn JobCard(entry: Entry, offset: f64) -> impl IntoView {
                 <button class="danger" data-testid="delete-job" on:click=move |_| state.delete(&id.get_value())>"Delete"</button>
             </div>
         </li>
+    }
+}
+
+/// An address named a job that is not on this phone (deleted, or opened from someone else's link).
+#[component]
+pub fn MissingPage() -> impl IntoView {
+    let state = expect_context::<AppState>();
+    view! {
+        <section class="page" data-testid="missing-page">
+            <h2>"That job is not on this phone"</h2>
+            <p>"The address names a job this phone does not have: it was deleted, or the link came from another phone. Jobs move between phones by export and import."</p>
+            <button class="primary" data-testid="missing-to-jobs" on:click=move |_| state.go(crate::route::Route::Jobs)>"Job list"</button>
+        </section>
     }
 }

@@ -141,7 +141,9 @@ fn LoadRow(index: usize) -> impl IntoView {
             .problems
             .with(|p| p.iter().any(|p| p.path.starts_with(&prefix)))
     };
-    let just_added = state.added.get_untracked() == Some(index) || has_problem();
+    let just_added = state.added.get_untracked() == Some(index)
+        || has_problem()
+        || state.route.with_untracked(|r| r.detail() == Some(index));
     Effect::new(move |_| {
         if let Some(el) = line_ref.get() {
             if state.added.get_untracked() == Some(index) {
@@ -150,6 +152,36 @@ fn LoadRow(index: usize) -> impl IntoView {
                 state.added.set(None);
             }
         }
+    });
+    // An appliance opened by a tap gets its own address, so the back button closes it first.
+    let details_ref = NodeRef::<leptos::html::Details>::new();
+    let on_line = move |_| {
+        let Some(el) = details_ref.get_untracked() else {
+            return;
+        };
+        // The click toggles the details after this handler: closed now means opening.
+        let route = state.route.get_untracked();
+        if !el.open() {
+            if let crate::route::Route::Job { id, tab, .. } = route {
+                state.go(crate::route::Route::Job {
+                    id,
+                    tab,
+                    detail: Some(index),
+                });
+            }
+        } else if route.detail() == Some(index) {
+            crate::nav::back();
+        }
+    };
+    // Back (or any move away from this appliance's address) closes it.
+    Effect::new(move |was_mine: Option<bool>| {
+        let mine = state.route.with(|r| r.detail() == Some(index));
+        if was_mine == Some(true) && !mine {
+            if let Some(el) = details_ref.get_untracked() {
+                el.set_open(false);
+            }
+        }
+        mine
     });
     let line_text = move || {
         state.draft.with(|d| {
@@ -175,8 +207,8 @@ fn LoadRow(index: usize) -> impl IntoView {
                     <input type="checkbox" prop:checked=on data-testid="load-on" aria-label="On"
                         on:change=move |ev| { let v = event_target_checked(&ev); state.edit(|j| edit::set_load(j, index, edit::LoadEdit::On(v))) } />
                 </label>
-                <details class="load-details" open=just_added>
-                    <summary class="load-line" class:bad=has_problem data-testid="load-line" node_ref=line_ref>
+                <details class="load-details" open=just_added node_ref=details_ref>
+                    <summary class="load-line" class:bad=has_problem data-testid="load-line" node_ref=line_ref on:click=on_line>
                         <span class="appliance-name">{move || line_text().0}</span>
                         <span class=leg_class>{move || line_text().1}</span>
                         <span class="watts">{move || format!("{} W", line_text().2)}</span>
