@@ -159,41 +159,6 @@ pub fn status_line(found: NeutralState, now: &Report, if_open: Option<&Report>) 
     s
 }
 
-/// Two plain sentences for the homeowner: which appliances get a harmful voltage now (under- or
-/// over-voltage or worse), and which would likely be damaged or stall if the neutral opened.
-pub fn homeowner_lines(now: &Report, if_open: &Report) -> (String, String) {
-    let now_bad: Vec<&str> = now
-        .loads
-        .iter()
-        .filter(|l| l.outcome.severity() >= 2)
-        .map(|l| l.name.as_str())
-        .collect();
-    let open_bad: Vec<&str> = if_open
-        .loads
-        .iter()
-        .filter(|l| l.outcome.severity() >= 3)
-        .map(|l| l.name.as_str())
-        .collect();
-    let first = if now_bad.is_empty() {
-        "Right now every appliance gets a usable voltage.".to_string()
-    } else {
-        format!(
-            "Right now these appliances get a harmful voltage: {}.",
-            now_bad.join(", ")
-        )
-    };
-    let second = if open_bad.is_empty() {
-        "If the neutral wire failed completely, none of these appliances would be at high risk."
-            .to_string()
-    } else {
-        format!(
-            "If the neutral wire failed completely, these would likely be damaged or stall: {}.",
-            open_bad.join(", ")
-        )
-    };
-    (first, second)
-}
-
 /// A moment as `YYYY-MM-DD HH:MM` in local time, from milliseconds since 1970 (UTC) and the
 /// browser's offset in minutes (UTC minus local, as JavaScript's `getTimezoneOffset` gives it).
 pub fn when(ms: f64, offset_minutes: f64) -> String {
@@ -284,16 +249,6 @@ mod tests {
         assert_eq!(when(1_796_146_260_000.0, 0.0), "2026-12-01 17:31");
         assert_eq!(when(1_796_146_260_000.0, 300.0), "2026-12-01 12:31");
         assert_eq!(when(0.0, 0.0), "1970-01-01 00:00");
-    }
-
-    #[test]
-    fn homeowner_lines_name_the_appliances_at_risk() {
-        let (_, job) = tapline_core::load_job(tapline_core::demo::DEMO_JOB).unwrap();
-        let w = tapline_core::whatif::what_if(&job).unwrap();
-        let (_, open) = homeowner_lines(&w.loose, &w.open);
-        assert!(open.contains("Aquarium heater"), "{open}");
-        let (now, _) = homeowner_lines(&w.intact, &w.open);
-        assert_eq!(now, "Right now every appliance gets a usable voltage.");
     }
 
     #[test]

@@ -757,6 +757,14 @@ impl AppState {
         }
     }
 
+    /// Changes a setting and saves the settings.
+    pub fn set_setting(&self, f: impl FnOnce(&mut Settings)) {
+        self.settings.update(f);
+        if let Err(e) = storage::save_settings(&self.settings.get_untracked()) {
+            self.storage_notice(e);
+        }
+    }
+
     /// Records that the cautions were read.
     pub fn accept_cautions(&self) {
         self.settings.update(|s| s.cautions_seen = true);

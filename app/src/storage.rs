@@ -10,7 +10,9 @@
 //! - `tapline.v1.draft.<id>`: the job file as being edited, valid or not, kept on every
 //!   keystroke while it differs from the saved job (removed once a valid version is saved), so
 //!   nothing typed is lost on a reload; the saved job stays the last valid version;
-//! - `tapline.v1.settings`: `{"units": "ft" | "m", "cautions_seen": bool}`;
+//! - `tapline.v1.settings`: `{"units": "ft" | "m", "cautions_seen": bool, "lang": "en" | "es",
+//!   "wires": "na" | "iec", "tech_name": text, "licence": text}` (a missing key takes its
+//!   default, so older settings still read);
 //! - `tapline.v1.seeded`: `true` once the demo job has been offered, so deleting it sticks.
 //!
 //! Every failure is a [`StorageError`] returned to the caller; nothing here panics. When local
@@ -81,6 +83,13 @@ impl StoredJob {
 pub struct Settings {
     pub units: String,
     pub cautions_seen: bool,
+    /// The homeowner view's language (a code of [`crate::messages::LANGS`]).
+    pub lang: String,
+    /// Conductor colours in the drawing: `na` (North America) or `iec`.
+    pub wires: String,
+    /// The technician and licence number printed on the page left with the homeowner.
+    pub tech_name: String,
+    pub licence: String,
 }
 
 impl Default for Settings {
@@ -88,6 +97,10 @@ impl Default for Settings {
         Settings {
             units: "ft".to_string(),
             cautions_seen: false,
+            lang: "en".to_string(),
+            wires: "na".to_string(),
+            tech_name: String::new(),
+            licence: String::new(),
         }
     }
 }

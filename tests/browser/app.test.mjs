@@ -172,7 +172,8 @@ describe('jobs', () => {
     const outcomes = await page.$$eval('[data-testid=appliance-result]', (els) => els.map((e) => e.getAttribute('data-outcome')));
     assert.ok(outcomes.includes('likely_damage') && outcomes.includes('stall'), `outcomes open: ${outcomes}`);
     // The homeowner summary says it in plain words, from the same results.
-    assert.match(await page.textContent('[data-testid=homeowner-summary]'), /these appliances get a harmful voltage: .*Aquarium heater/);
+    await page.click('[data-testid=owner-as-found]');
+    assert.match(await page.textContent('[data-testid=owner-summary]'), /Aquarium heater: .* far too high, it is likely damaged/);
     await shot(page, 'phone-results-open');
     await page.click('[data-testid=back-to-jobs]');
     assert.match(await page.textContent('[data-testid=job-status]'), /^neutral found open · /);

@@ -4,6 +4,7 @@ pub mod cautions;
 pub mod job;
 pub mod jobs;
 mod loads;
+pub mod owner;
 mod panel;
 mod readings;
 mod results;

@@ -18,44 +18,6 @@ pub fn ProblemList() -> impl IntoView {
     }
 }
 
-/// A plain-language summary a technician can show or print for the homeowner.
-#[component]
-fn HomeownerSummary() -> impl IntoView {
-    let state = expect_context::<AppState>();
-    let lines = move || {
-        state.what_if.with(|w| match w {
-            Some(Ok(w)) => {
-                let (now, open) = state.report.with(|r| match r {
-                    Some(Ok(r)) => crate::format::homeowner_lines(r, &w.open),
-                    _ => (String::new(), String::new()),
-                });
-                let urgent = state.report.with(|r| match r {
-                    Some(Ok(r)) if r.neutral.state != "intact" => Some(view! {
-                        <p data-testid="neutral-urgent"><strong>"The neutral was found loose or open: that is urgent to repair even while the appliances still get a usable voltage, because a bad neutral connection heats up and can fail completely without warning."</strong></p>
-                    }),
-                    _ => None,
-                });
-                view! {
-                    {urgent}
-                    <p>{now}</p>
-                    <p>{open}</p>
-                }
-                .into_any()
-            }
-            _ => ().into_any(),
-        })
-    };
-    view! {
-        <section class="homeowner" data-testid="homeowner-summary">
-            <h3>"For the homeowner"</h3>
-            <p>"The neutral is the shared return wire of your electrical service. When it is loose or broken, some outlets get too much voltage and others too little, which can ruin appliances and start fires."</p>
-            {lines}
-            <p>"Repairs to the service and panel are for a licensed electrician; the wires up to the meter belong to the utility. These figures are estimates from a model and must be confirmed with a meter by your electrician."</p>
-            <button data-testid="print" on:click=move |_| { if let Some(w) = web_sys::window() { let _ = w.print(); } }>"Print"</button>
-        </section>
-    }
-}
-
 #[component]
 pub fn ResultsTab() -> impl IntoView {
     let state = expect_context::<AppState>();
@@ -63,7 +25,7 @@ pub fn ResultsTab() -> impl IntoView {
         <div class="tab-body" data-testid="results-tab">
             <PrintHeader />
             <Show when=move || matches!(state.report.get(), Some(Ok(_)))>
-                <HomeownerSummary />
+                <super::owner::OwnerView />
             </Show>
             {move || state.report.with(|r| match r {
                 None => view! { <ProblemList /> }.into_any(),
