@@ -65,7 +65,9 @@ pub fn summary(
     rebalance: bool,
     measured: Option<(&str, &Diagnosis)>,
 ) -> Summary {
-    let wye = found.legs.len() == 3 || found.system.contains("208") && found.legs.len() == 2;
+    // On a wye (three legs, or two legs of one) the legs' currents are 120° apart and only partly
+    // cancel in the neutral; on a split-phase service they are opposite and cancel.
+    let wye = found.system.contains("wye");
     let legs = found
         .legs
         .iter()
@@ -487,6 +489,9 @@ mod tests {
         .unwrap()
         .1;
         let r = tapline_core::report::analyze(&job).unwrap();
+        let cat = Catalogue::of("en");
+        let s = summary(cat, &r, &r, &Shown::Found, None, false, None);
+        assert_eq!(s.intro, cat.get("owner.neutral_what_wye"));
         let d = drawing(&r);
         assert_eq!(d.buses.len(), 4);
         assert_eq!(d.items.len(), 3);
