@@ -3,6 +3,20 @@
 use tapline_core::report::Report;
 use tapline_core::validated::NeutralState;
 
+/// An outcome's symbol, so badges and the drawing read without colour.
+pub fn outcome_symbol(o: tapline_core::classify::Outcome) -> &'static str {
+    use tapline_core::classify::Outcome;
+    match o {
+        Outcome::Off => "○",
+        Outcome::Normal => "✓",
+        Outcome::Marginal => "~",
+        Outcome::UnderVoltage => "▼",
+        Outcome::OverVoltage => "▲",
+        Outcome::Stall => "■",
+        Outcome::LikelyDamage => "✕",
+    }
+}
+
 /// Volts with one decimal, or a dash when undefined.
 pub fn volts(v: Option<f64>) -> String {
     v.map(|v| format!("{v:.1} V"))

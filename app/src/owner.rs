@@ -199,19 +199,6 @@ pub struct Drawing {
 pub const ROW: f64 = 46.0;
 const FIRST_ROW: f64 = 92.0;
 
-/// The symbol of an outcome, so the drawing reads without colour.
-pub fn symbol(o: Outcome) -> &'static str {
-    match o {
-        Outcome::Off => "○",
-        Outcome::Normal => "✓",
-        Outcome::Marginal => "~",
-        Outcome::UnderVoltage => "▼",
-        Outcome::OverVoltage => "▲",
-        Outcome::Stall => "■",
-        Outcome::LikelyDamage => "✕",
-    }
-}
-
 /// Lays out the drawing of `report`: the windings across the top (a center tap for split-phase,
 /// three windings for a wye), a vertical wire per leg and the neutral, each labelled with its
 /// current, and each appliance as a box between its wires with its voltage and outcome.

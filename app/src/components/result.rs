@@ -6,15 +6,7 @@ use tapline_core::classify::Outcome;
 /// An appliance's outcome as a word with a symbol, so it reads without colour.
 #[component]
 pub fn OutcomeBadge(outcome: Outcome) -> impl IntoView {
-    let symbol = match outcome {
-        Outcome::Off => "○",
-        Outcome::Normal => "✓",
-        Outcome::Marginal => "~",
-        Outcome::UnderVoltage => "▼",
-        Outcome::OverVoltage => "▲",
-        Outcome::Stall => "■",
-        Outcome::LikelyDamage => "✕",
-    };
+    let symbol = crate::format::outcome_symbol(outcome);
     let class = format!("badge badge-{}", outcome.code());
     view! { <span class=class data-outcome=outcome.code()>{symbol} " " {outcome.label()}</span> }
 }

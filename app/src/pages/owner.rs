@@ -256,7 +256,7 @@ fn ServiceDrawing(
                     <line class="stub" x1=x + w y1=it.y + 20.0 x2=it.to_x y2=it.y + 20.0 />
                     <rect class=class x=x y=it.y width=w height="40" rx="6" />
                     <text class="box-name" x=x + 5.0 y=it.y + 16.0>{name}</text>
-                    <text class="box-figure" x=x + 5.0 y=it.y + 33.0>{format!("{} {} {}", it.volts, owner::symbol(it.outcome), short)}</text>
+                    <text class="box-figure" x=x + 5.0 y=it.y + 33.0>{format!("{} {} {}", it.volts, crate::format::outcome_symbol(it.outcome), short)}</text>
                 </g>
             }
         })
