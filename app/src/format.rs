@@ -241,16 +241,13 @@ mod tests {
 
     #[test]
     fn group_totals_count_the_appliances_switched_on() {
-        let job = tapline_core::load_job(
-            r#"{"version": 1, "name": "t",
-                "system": {"kind": "split-phase", "volts_to_neutral": 120, "frequency_hz": 60},
-                "loads": [
+        let job = crate::test_job(
+            "split-phase",
+            r#"[
                   {"name": "A", "connect": "L1-N", "model": "resistive", "watts": 1000, "rated_v": 120},
                   {"name": "B", "connect": "L1-N", "model": "resistive", "watts": 500, "rated_v": 120, "on": false},
-                  {"name": "C", "connect": "L1-L2", "model": "resistive", "watts": 4000, "rated_v": 240}]}"#,
-        )
-        .unwrap()
-        .1;
+                  {"name": "C", "connect": "L1-L2", "model": "resistive", "watts": 4000, "rated_v": 240}]"#,
+        );
         let r = tapline_core::report::analyze(&job).unwrap();
         // L1 carries A (1000 W / 120 V = 8.33 A) and C (4000 W / 240 V = 16.67 A): 25.0 A.
         assert_eq!(group_total(&r, "L1"), "1000 W rated on · leg now 25.0 A");

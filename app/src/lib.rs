@@ -62,6 +62,16 @@ pub fn App() -> impl IntoView {
     }
 }
 
+/// A small job for the tests: `kind` (`split-phase` or `wye`) at 120 V to neutral and 60 Hz,
+/// with `loads`, the JSON text of its list of loads (a stiff source, no conductors).
+#[cfg(test)]
+pub(crate) fn test_job(kind: &str, loads: &str) -> tapline_core::validated::Job {
+    let text = format!(
+        r#"{{"version": 1, "name": "t", "system": {{"kind": "{kind}", "volts_to_neutral": 120, "frequency_hz": 60}}, "loads": {loads}}}"#
+    );
+    tapline_core::load_job(&text).unwrap().1
+}
+
 /// Mounts the app on the page.
 pub fn start() {
     console_error_panic_hook::set_once();

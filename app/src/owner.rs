@@ -2,19 +2,12 @@
 //! both made from one engine report (the neutral as found, loose or open), so the words and the
 //! picture can never say two different things. Words come from [`crate::messages`].
 
+use crate::edit::neutral::Explore;
 use crate::format;
 use crate::messages::Catalogue;
 use tapline_core::classify::Outcome;
 use tapline_core::report::Report;
 use tapline_core::tools::diagnose::{Diagnosis, Verdict};
-
-/// The neutral state shown: as found, loose (ohms as text) or open.
-#[derive(Clone, Debug, PartialEq)]
-pub enum Shown {
-    Found,
-    Loose(String),
-    Open,
-}
 
 /// The summary, line by line.
 #[derive(Clone, Debug, PartialEq)]
@@ -60,7 +53,7 @@ pub fn summary(
     cat: Catalogue,
     found: &Report,
     shown: &Report,
-    state: &Shown,
+    state: &Explore,
     open: Option<&Report>,
     rebalance: bool,
     measured: Option<(&str, &Diagnosis)>,
@@ -77,9 +70,9 @@ pub fn summary(
     let found_bad =
         (found.neutral.state != "intact").then(|| cat.get("owner.found_bad").to_string());
     let heading = match state {
-        Shown::Found => cat.get("owner.state.found").to_string(),
-        Shown::Loose(ohms) => cat.fill("owner.state.loose", &[("ohms", ohms)]),
-        Shown::Open => cat.get("owner.state.open").to_string(),
+        Explore::AsFound => cat.get("owner.state.found").to_string(),
+        Explore::Loose(ohms) => cat.fill("owner.state.loose", &[("ohms", ohms)]),
+        Explore::Open => cat.get("owner.state.open").to_string(),
     };
     // What to unplug: what the worst case (the neutral opening) would harm, once the neutral is
     // known to be bad. With a sound neutral there is nothing to unplug.
@@ -306,7 +299,7 @@ mod tests {
         let (_, found, open) = demo();
         for (code, _, _) in crate::messages::LANGS {
             let cat = Catalogue::of(code);
-            for (shown, state) in [(&found, Shown::Found), (&open, Shown::Open)] {
+            for (shown, state) in [(&found, Explore::AsFound), (&open, Explore::Open)] {
                 let s = summary(cat, &found, shown, &state, Some(&open), false, None);
                 assert_eq!(s.appliances.len(), shown.loads.len());
                 for (line, l) in s.appliances.iter().zip(&shown.loads) {
@@ -350,33 +343,24 @@ mod tests {
         let intact =
             tapline_core::report::analyze(&job.with_neutral(NeutralState::Intact)).unwrap();
         let cat = Catalogue::of("en");
-        let s = summary(
-            cat,
-            &intact,
-            &intact,
-            &Shown::Found,
-            Some(&open),
-            false,
-            None,
-        );
+        let as_found = |rebalance| {
+            summary(
+                cat,
+                &intact,
+                &intact,
+                &Explore::AsFound,
+                Some(&open),
+                rebalance,
+                None,
+            )
+        };
+        let s = as_found(false);
         assert_eq!(s.found_bad, None);
         assert_eq!(s.now[0], cat.get("owner.now.nothing"));
+        assert_eq!(s.recommend, [cat.get("owner.recommend.none")]);
         assert_eq!(
-            s.recommend,
-            vec![cat.get("owner.recommend.none").to_string()]
-        );
-        let s = summary(
-            cat,
-            &intact,
-            &intact,
-            &Shown::Found,
-            Some(&open),
-            true,
-            None,
-        );
-        assert_eq!(
-            s.recommend,
-            vec![cat.get("owner.recommend.rebalance").to_string()]
+            as_found(true).recommend,
+            [cat.get("owner.recommend.rebalance")]
         );
     }
 
@@ -388,17 +372,21 @@ mod tests {
         let mut d = diagnose(&parse_readings(text).unwrap()).unwrap();
         let cat = Catalogue::of("en");
         let utility = cat.get("owner.now.utility");
+        let measured = |d: &Diagnosis| {
+            let s = summary(
+                cat,
+                &found,
+                &found,
+                &Explore::AsFound,
+                Some(&open),
+                false,
+                Some(("2026-12-01 09:40", d)),
+            );
+            let calls_utility = s.now.iter().any(|l| l == utility);
+            (s.measured.unwrap(), calls_utility)
+        };
         d.likely_location = "building side";
-        let s = summary(
-            cat,
-            &found,
-            &found,
-            &Shown::Found,
-            Some(&open),
-            false,
-            Some(("2026-12-01 09:40", &d)),
-        );
-        let m = s.measured.clone().unwrap();
+        let (m, calls) = measured(&d);
         assert!(
             m.starts_with("Measured 2026-12-01 09:40: the neutral path is "),
             "{m}"
@@ -407,31 +395,13 @@ mod tests {
             m.contains(cat.get(&format!("verdict.{}", d.verdict.code()))),
             "{m}"
         );
-        assert!(!s.now.iter().any(|l| l == utility));
+        assert!(!calls);
         d.likely_location = "utility side";
         d.verdict = Verdict::Dangerous;
-        let s = summary(
-            cat,
-            &found,
-            &found,
-            &Shown::Found,
-            Some(&open),
-            false,
-            Some(("x", &d)),
-        );
-        assert!(s.now.iter().any(|l| l == utility), "{:?}", s.now);
+        assert!(measured(&d).1);
         // A healthy neutral measured before the meter is nobody's fault.
         d.verdict = Verdict::Healthy;
-        let s = summary(
-            cat,
-            &found,
-            &found,
-            &Shown::Found,
-            Some(&open),
-            false,
-            Some(("x", &d)),
-        );
-        assert!(!s.now.iter().any(|l| l == utility));
+        assert!(!measured(&d).1);
     }
 
     #[test]
@@ -465,19 +435,16 @@ mod tests {
 
     #[test]
     fn a_wye_service_is_drawn_with_three_legs() {
-        let job = tapline_core::load_job(
-            r#"{"version": 1, "name": "t",
-                "system": {"kind": "wye", "volts_to_neutral": 120, "frequency_hz": 60},
-                "loads": [
+        let job = crate::test_job(
+            "wye",
+            r#"[
                   {"name": "A", "connect": "L1-N", "model": "resistive", "watts": 1000, "rated_v": 120},
                   {"name": "B", "connect": "L3-N", "model": "resistive", "watts": 500, "rated_v": 120},
-                  {"name": "C", "connect": "L1-L2", "model": "resistive", "watts": 2000, "rated_v": 208}]}"#,
-        )
-        .unwrap()
-        .1;
+                  {"name": "C", "connect": "L1-L2", "model": "resistive", "watts": 2000, "rated_v": 208}]"#,
+        );
         let r = tapline_core::report::analyze(&job).unwrap();
         let cat = Catalogue::of("en");
-        let s = summary(cat, &r, &r, &Shown::Found, None, false, None);
+        let s = summary(cat, &r, &r, &Explore::AsFound, None, false, None);
         assert_eq!(s.intro, cat.get("owner.neutral_what_wye"));
         let d = drawing(&r);
         assert_eq!(d.buses.len(), 4);

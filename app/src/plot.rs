@@ -365,17 +365,14 @@ mod tests {
     /// they share a line; one on L2 and a 240 V appliance each get their own.
     #[test]
     fn appliances_that_see_one_voltage_share_a_line_and_others_do_not() {
-        let job = tapline_core::load_job(
-            r#"{"version": 1, "name": "t",
-                "system": {"kind": "split-phase", "volts_to_neutral": 120, "frequency_hz": 60},
-                "loads": [
+        let job = crate::test_job(
+            "split-phase",
+            r#"[
                   {"name": "Kettle", "connect": "L1-N", "model": "resistive", "watts": 1500, "rated_v": 120},
                   {"name": "Lamp", "connect": "L1-N", "model": "resistive", "watts": 60, "rated_v": 120},
                   {"name": "Heater", "connect": "L2-N", "model": "resistive", "watts": 500, "rated_v": 120},
-                  {"name": "Dryer", "connect": "L1-L2", "model": "resistive", "watts": 4000, "rated_v": 240}]}"#,
-        )
-        .unwrap()
-        .1;
+                  {"name": "Dryer", "connect": "L1-L2", "model": "resistive", "watts": 4000, "rated_v": 240}]"#,
+        );
         let s = sweep(&job, &sweep_points(40)).unwrap();
         let p = layout(&s, None);
         let labels: Vec<&str> = p.lines.iter().map(|l| l.label.as_str()).collect();

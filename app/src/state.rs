@@ -14,7 +14,7 @@ use tapline_core::tools::diagnose::{history, History};
 use tapline_core::tools::plan::{plan, Plan};
 use tapline_core::validate::{validate, what_if_neutral, Problem};
 use tapline_core::validated::{Job, NeutralState};
-use tapline_core::whatif::{sweep, sweep_points, what_if, Sweep, WhatIf};
+use tapline_core::whatif::{sweep, sweep_points, Sweep};
 
 /// Points in the app's neutral sweep plot.
 pub const SWEEP_POINTS: usize = 160;
@@ -60,6 +60,16 @@ pub struct Notice {
     pub text: String,
     /// A storage problem: cleared by itself once a save succeeds again.
     pub storage: bool,
+}
+
+impl From<storage::StorageError> for Notice {
+    /// A storage problem in plain words; all but a job set aside go once storage works again.
+    fn from(e: storage::StorageError) -> Notice {
+        Notice {
+            storage: !matches!(e, storage::StorageError::SetAside { .. }),
+            text: e.to_string(),
+        }
+    }
 }
 
 /// Another tab or window saved or deleted the open job since this one read it.
@@ -126,7 +136,9 @@ pub struct AppState {
     pub job: Memo<Result<Job, Vec<Problem>>>,
     pub problems: Memo<Vec<Problem>>,
     pub report: Memo<Option<Result<Report, String>>>,
-    pub what_if: Memo<Option<Result<WhatIf, String>>>,
+    /// The job solved with its neutral open: the worst case the homeowner view and the job
+    /// list speak of.
+    pub open: Memo<Option<Result<Report, String>>>,
     pub sweep: Memo<Option<Result<Sweep, String>>>,
     /// Every dated set of the job's readings diagnosed (none while the job itself has problems).
     pub diagnosis: Memo<Option<History>>,
@@ -193,11 +205,11 @@ impl AppState {
                     .map(|j| analyze(j).map_err(|e| e.to_string()))
             })
         });
-        let what_if = Memo::new(move |_| {
+        let open = Memo::new(move |_| {
             valid.with(|v| {
-                v.as_ref()
-                    .ok()
-                    .map(|j| what_if(j).map_err(|e| e.to_string()))
+                v.as_ref().ok().map(|j| {
+                    analyze(&j.with_neutral(NeutralState::Open)).map_err(|e| e.to_string())
+                })
             })
         });
         let sweep = Memo::new(move |_| {
@@ -211,23 +223,14 @@ impl AppState {
             valid.with(|v| v.as_ref().ok().map(|j| draft.with(|file| history(j, file))))
         });
         let explore = RwSignal::new(Explore::Open);
+        // The as-found and open states are solved once, by `report` and `open`; only a loose
+        // neutral of the person's choosing needs a solve of its own.
         let explored = Memo::new(move |_| {
             let file = explore.with(Explore::to_file);
             valid.with(|v| {
                 let job = v.as_ref().ok()?;
                 let neutral = match file.map(|f| what_if_neutral(&f)) {
-                    // The neutral as found is the job's own report: no second solve.
-                    None => {
-                        return report.with(|r| {
-                            r.as_ref().map(|r| match r {
-                                Ok(rep) => Explored::Ready {
-                                    neutral: job.neutral(),
-                                    report: Box::new(rep.clone()),
-                                },
-                                Err(e) => Explored::Failed(e.clone()),
-                            })
-                        })
-                    }
+                    None => job.neutral(),
                     Some(Ok(n)) => n,
                     Some(Err(p)) => {
                         return Some(Explored::Field(
@@ -235,13 +238,22 @@ impl AppState {
                         ))
                     }
                 };
-                Some(match analyze(&job.with_neutral(neutral)) {
-                    Ok(report) => Explored::Ready {
+                let ready = |r: &Result<Report, String>| match r {
+                    Ok(rep) => Explored::Ready {
                         neutral,
-                        report: Box::new(report),
+                        report: Box::new(rep.clone()),
                     },
-                    Err(e) => Explored::Failed(e.to_string()),
-                })
+                    Err(e) => Explored::Failed(e.clone()),
+                };
+                if neutral == job.neutral() {
+                    return report.with(|r| r.as_ref().map(ready));
+                }
+                if neutral == NeutralState::Open {
+                    return open.with(|r| r.as_ref().map(ready));
+                }
+                Some(ready(
+                    &analyze(&job.with_neutral(neutral)).map_err(|e| e.to_string()),
+                ))
             })
         });
         let flipped = RwSignal::new(false);
@@ -277,7 +289,7 @@ impl AppState {
             import_problems: RwSignal::new(Vec::new()),
             problems,
             report,
-            what_if,
+            open,
             sweep,
             diagnosis,
             flipped,
@@ -336,15 +348,8 @@ impl AppState {
             }
         }
         self.jobs.set(entries);
-        self.banners.set(
-            banners
-                .into_iter()
-                .map(|e| Notice {
-                    text: e.to_string(),
-                    storage: !matches!(e, storage::StorageError::SetAside { .. }),
-                })
-                .collect(),
-        );
+        self.banners
+            .set(banners.into_iter().map(Notice::from).collect());
     }
 
     /// Re-reads the saved jobs after another tab changed them, so the list shows what is stored.
@@ -367,11 +372,20 @@ impl AppState {
             Route::Jobs => Screen::Jobs,
             Route::Cautions => Screen::Cautions,
             Route::Job { id, tab, .. } => {
-                if self.jobs.with_untracked(|j| j.iter().any(|e| &e.id == id)) {
-                    if self
+                let listed = self
+                    .jobs
+                    .with_untracked(|j| j.iter().find(|e| &e.id == id).map(|e| e.stored.revision));
+                if let Some(revision) = listed {
+                    // Opened afresh when it is another job, or when the stored job moved on since
+                    // it was loaded (renamed in the list, saved by another tab) and this tab has
+                    // nothing unsaved; edits kept as a draft wait for the save check to ask.
+                    let same = self
                         .open_id
-                        .with_untracked(|o| o.as_deref() != Some(id.as_str()))
-                    {
+                        .with_untracked(|o| o.as_deref() == Some(id.as_str()));
+                    let moved_on = self.base.get_untracked().is_some_and(|b| b != revision)
+                        && self.conflict.with_untracked(Option::is_none)
+                        && storage::load_draft(id).is_none();
+                    if !same || moved_on {
                         self.open(id);
                     }
                     if self.tab.get_untracked() != *tab {
@@ -462,16 +476,19 @@ impl AppState {
 
     /// Adds a library appliance on `connect` (a 240 V one goes across two legs).
     pub fn add_appliance(&self, a: &tapline_core::library::Appliance, connect: &str) {
-        self.added
-            .set(Some(self.draft.with_untracked(|d| edit::loads(d).len())));
-        self.edit_structure(|j| edit::add_appliance(j, a, connect));
+        self.add_load(|j| edit::add_appliance(j, a, connect));
     }
 
     /// Adds a custom load on `connect`.
     pub fn add_custom(&self, connect: &str) {
+        self.add_load(|j| edit::add_custom_on(j, connect));
+    }
+
+    /// Appends a load, whose line then opens with the focus.
+    fn add_load(&self, f: impl FnOnce(&mut JobFile)) {
         self.added
             .set(Some(self.draft.with_untracked(|d| edit::loads(d).len())));
-        self.edit_structure(|j| edit::add_custom_on(j, connect));
+        self.edit_structure(f);
     }
 
     /// Removes appliance `i`, keeping the job as it was for undo.
@@ -719,11 +736,7 @@ impl AppState {
 
     /// Shows a storage problem in plain words; it goes once storage works again.
     pub fn storage_notice(&self, e: storage::StorageError) {
-        let storage = !matches!(e, storage::StorageError::SetAside { .. });
-        self.notice(Notice {
-            text: e.to_string(),
-            storage,
-        });
+        self.notice(e.into());
     }
 
     fn notice(&self, n: Notice) {
@@ -750,11 +763,8 @@ impl AppState {
 
     /// Changes the length units.
     pub fn set_units(&self, units: edit::Units) {
-        self.settings.update(|s| s.units = units.code().to_string());
+        self.set_setting(|s| s.units = units.code().to_string());
         self.structure.update(|s| *s += 1);
-        if let Err(e) = storage::save_settings(&self.settings.get_untracked()) {
-            self.storage_notice(e);
-        }
     }
 
     /// Changes a setting and saves the settings.
@@ -767,10 +777,7 @@ impl AppState {
 
     /// Records that the cautions were read.
     pub fn accept_cautions(&self) {
-        self.settings.update(|s| s.cautions_seen = true);
-        if let Err(e) = storage::save_settings(&self.settings.get_untracked()) {
-            self.storage_notice(e);
-        }
+        self.set_setting(|s| s.cautions_seen = true);
     }
 
     /// The units setting.
@@ -794,15 +801,9 @@ impl Default for AppState {
 pub fn status_of(job: &JobFile) -> String {
     match validate(job) {
         Err(p) => format!("{} field(s) to fix", p.len()),
-        Ok(j) => match what_if(&j) {
-            Ok(w) => {
-                let now = match analyze(&j) {
-                    Ok(r) => r,
-                    Err(e) => return e.to_string(),
-                };
-                crate::format::status_line(j.neutral(), &now, Some(&w.open))
-            }
-            Err(e) => e.to_string(),
+        Ok(j) => match (analyze(&j), analyze(&j.with_neutral(NeutralState::Open))) {
+            (Ok(now), Ok(open)) => crate::format::status_line(j.neutral(), &now, Some(&open)),
+            (Err(e), _) | (_, Err(e)) => e.to_string(),
         },
     }
 }

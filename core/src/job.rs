@@ -24,9 +24,10 @@
 //! `delta-wye`, the default for wye; or `wye-wye`), per conductor `length_ft`, `sets` (parallel
 //! sets), `conduit` (`pvc`, `aluminum`, `steel`) and `temperature_c`, `neutral.earth_return_ohms`
 //! (the grounding electrode's path to the transformer neutral, beside the neutral conductor in every
-//! state), `neutral.found` (how the neutral's state was found on site, in words), and per load `on`, `branch` (a conductor, one-way length), `input_min_v`/`input_max_v`
-//! (electronic supplies), `harmonics` (pairs of order and fraction of the fundamental current),
-//! `circuit`, `movable`, `slot`, a motor's starting draw (`locked_rotor_a`, or `code_letter` with
+//! state), `neutral.found` (how the neutral's state was found on site, in words), and per load
+//! `on`, `branch` (a conductor, one-way length), `input_min_v`/`input_max_v` (electronic
+//! supplies), `harmonics` (pairs of order and fraction of the fundamental current), `circuit`,
+//! `movable`, `slot`, a motor's starting draw (`locked_rotor_a`, or `code_letter` with
 //! `hp` per NEC Table 430.7(B), or `locked_rotor_multiple` of its running current; 5 if none is
 //! given, common practice; and `start_pf`, 0.35 if absent) and `multiwire` (the id of a shared-neutral branch circuit listed at
 //! the top level under `multiwire`, each with `id`, `material`, `size`, `length_m` or `length_ft`

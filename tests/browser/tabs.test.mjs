@@ -56,4 +56,23 @@ describe('two tabs', () => {
     assert.equal(await b.locator('[data-testid=job-card]').count(), 0);
     await context.close();
   });
+
+  test('a job renamed in the list opens renamed, and its next edit saves without a conflict', async () => {
+    const { context, page } = await phone(env.browser);
+    await openApp(page, env.url);
+    await page.click('[data-testid=open-job]');
+    await page.click('[data-testid=back-to-jobs]');
+    await page.click('[data-testid=rename-job]');
+    await page.fill('[data-testid=rename-input]', '14 Fern Walk');
+    await page.click('[data-testid=rename-save]');
+    await page.click('[data-testid=open-job]');
+    assert.equal(await page.textContent('[data-testid=job-title]'), '14 Fern Walk');
+    await page.click('[data-testid=tab-service]');
+    await page.fill('[data-testid=job-notes]', 'gate code 4411 (invented)');
+    assert.equal(await page.locator('[data-testid=conflict]').count(), 0);
+    const job = (await stored(page)).job;
+    assert.equal(job.name, '14 Fern Walk');
+    assert.equal(job.notes, 'gate code 4411 (invented)');
+    await context.close();
+  });
 });

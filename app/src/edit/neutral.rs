@@ -89,6 +89,25 @@ impl Explore {
         })
     }
 
+    /// A loose neutral to explore, starting from the resistance found on site when the neutral
+    /// was found loose, or else the engine's what-if default
+    /// ([`tapline_core::whatif::DEFAULT_LOOSE_OHMS`]).
+    pub fn loose_from(found: &NeutralText) -> Explore {
+        Explore::Loose(if found.state == "loose" && !found.ohms.trim().is_empty() {
+            found.ohms.clone()
+        } else {
+            format!("{}", tapline_core::whatif::DEFAULT_LOOSE_OHMS)
+        })
+    }
+
+    /// The resistance typed for a loose neutral, if this is one.
+    pub fn loose_text(&self) -> Option<&str> {
+        match self {
+            Explore::Loose(t) => Some(t),
+            _ => None,
+        }
+    }
+
     /// `as-found`, `loose` or `open`.
     pub fn code(&self) -> &'static str {
         match self {
@@ -130,6 +149,11 @@ mod tests {
     #[test]
     fn an_exploration_is_checked_by_the_engine_and_leaves_the_job_alone() {
         assert_eq!(Explore::AsFound.to_file(), None);
+        let mut found = neutral_of(&new_job("t"));
+        assert_eq!(Explore::loose_from(&found), Explore::Loose("2".into()));
+        found.state = "loose".into();
+        found.ohms = "0.8".into();
+        assert_eq!(Explore::loose_from(&found), Explore::Loose("0.8".into()));
         let loose = Explore::Loose("2.5".into()).to_file().unwrap();
         assert_eq!(
             what_if_neutral(&loose),

@@ -183,7 +183,8 @@ fn LoadRow(index: usize) -> impl IntoView {
         }
         mine
     });
-    let line_text = move || {
+    // Read once per edit for the three parts of the line.
+    let line_text = Memo::new(move |_| {
         state.draft.with(|d| {
             let l = edit::loads(d).get(index).cloned().unwrap_or_default();
             (
@@ -192,9 +193,9 @@ fn LoadRow(index: usize) -> impl IntoView {
                 edit::text_of_number(&l.watts),
             )
         })
-    };
+    });
     let leg_class = move || {
-        let c = line_text().1;
+        let c = line_text.with(|t| t.1.clone());
         format!(
             "chip chip-{}",
             c.split('-').next().unwrap_or("").to_ascii_lowercase()
@@ -209,9 +210,9 @@ fn LoadRow(index: usize) -> impl IntoView {
                 </label>
                 <details class="load-details" open=just_added node_ref=details_ref>
                     <summary class="load-line" class:bad=has_problem data-testid="load-line" node_ref=line_ref on:click=on_line>
-                        <span class="appliance-name">{move || line_text().0}</span>
-                        <span class=leg_class>{move || line_text().1}</span>
-                        <span class="watts">{move || format!("{} W", line_text().2)}</span>
+                        <span class="appliance-name">{move || line_text.with(|t| t.0.clone())}</span>
+                        <span class=leg_class>{move || line_text.with(|t| t.1.clone())}</span>
+                        <span class="watts">{move || format!("{} W", line_text.with(|t| t.2.clone()))}</span>
                         {outcome}
                     </summary>
                     <button class="danger small" data-testid="remove-load" on:click=move |_| state.remove_load(index)>"Remove"</button>

@@ -5,31 +5,9 @@
 
 use crate::edit::neutral::Explore;
 use crate::messages::{Catalogue, LANGS};
-use crate::owner::{self, Drawing, Shown};
+use crate::owner::{self, Drawing};
 use crate::state::{AppState, Explored};
 use leptos::prelude::*;
-use tapline_core::report::Report;
-
-/// The report of the state on screen, and that state.
-fn shown(state: AppState) -> Option<(Report, Shown)> {
-    let explore = state.explore.get();
-    match &explore {
-        Explore::AsFound => state.report.with(|r| match r {
-            Some(Ok(r)) => Some((r.clone(), Shown::Found)),
-            _ => None,
-        }),
-        other => state.explored.with(|e| match e {
-            Some(Explored::Ready { report, .. }) => Some((
-                (**report).clone(),
-                match other {
-                    Explore::Loose(t) => Shown::Loose(t.clone()),
-                    _ => Shown::Open,
-                },
-            )),
-            _ => None,
-        }),
-    }
-}
 
 #[component]
 pub fn OwnerView() -> impl IntoView {
@@ -40,35 +18,26 @@ pub fn OwnerView() -> impl IntoView {
         let pick = move |_| {
             state.explore.set(match which {
                 "as-found" => Explore::AsFound,
-                "loose" => {
-                    let found = state.draft.with_untracked(crate::edit::neutral::neutral_of);
-                    Explore::Loose(if found.state == "loose" && !found.ohms.is_empty() {
-                        found.ohms
-                    } else {
-                        "2".to_string()
-                    })
-                }
+                "loose" => Explore::loose_from(
+                    &state.draft.with_untracked(crate::edit::neutral::neutral_of),
+                ),
                 _ => Explore::Open,
             })
         };
         view! { <button class="tab" class:active=move || state.explore.with(|e| e.code() == which) data-testid=format!("owner-{which}") on:click=pick>{move || cat().get(id)}</button> }
     };
     let body = move || {
-        let Some((report, shown_state)) = shown(state) else {
+        // The state on screen, solved (the explored memo reuses the job's own report as found
+        // and the open-neutral solve).
+        let shown = state.explore.get();
+        let Some(Explored::Ready { report, .. }) = state.explored.get() else {
             return ().into_any();
         };
         let c = cat();
-        let found = state.report.with(|r| match r {
-            Some(Ok(r)) => Some(r.clone()),
-            _ => None,
-        });
-        let Some(found) = found else {
+        let Some(Ok(found)) = state.report.get() else {
             return ().into_any();
         };
-        let open = state.what_if.with(|w| match w {
-            Some(Ok(w)) => Some(w.open.clone()),
-            _ => None,
-        });
+        let open = state.open.get().and_then(Result::ok);
         let rebalance = state
             .balance
             .with(|b| b.as_ref().is_some_and(|b| !b.moves.is_empty()));
@@ -85,7 +54,7 @@ pub fn OwnerView() -> impl IntoView {
             c,
             &found,
             &report,
-            &shown_state,
+            &shown,
             open.as_ref(),
             rebalance,
             latest.as_ref().map(|(t, d)| (t.as_str(), d)),

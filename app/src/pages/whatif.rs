@@ -45,8 +45,10 @@ fn WhatIfBody() -> impl IntoView {
     let found = state.draft.with_untracked(edit::neutral::neutral_of);
     let loose_text = match state.explore.get_untracked() {
         Explore::Loose(t) => t,
-        _ if found.state == "loose" => found.ohms.clone(),
-        _ => "2".to_string(),
+        _ => Explore::loose_from(&found)
+            .loose_text()
+            .unwrap_or_default()
+            .to_string(),
     };
     let typed = RwSignal::new(loose_text.clone());
     let state_button = move |which: &'static str, label: &'static str| {
