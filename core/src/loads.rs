@@ -348,25 +348,76 @@ pub struct Characteristic {
     y_stalled: Complex64,
 }
 
+/// How a voltage-dependent admittance scales with the terminal voltage: Y(v) = coefficient ·
+/// factor(v), with the coefficient a constant of the load (see [`Characteristic::split`]). Loads
+/// of one shape on the same two nodes share the factor, so the solver works it out once for all.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Shape {
+    /// factor(v) = max(v/V_r, [`LAMP_MIN_FRACTION`])^(0.54 − 1); coefficient P/V_r².
+    Lamp { rated_v: f64 },
+    /// factor(v) = 1/max(v, floor)²; coefficient (P + jQ)*.
+    ConstantPower { floor_v: f64 },
+}
+
+impl Shape {
+    /// The factor at terminal voltage magnitude `v`, volts.
+    #[inline]
+    pub fn factor(self, v: f64) -> f64 {
+        match self {
+            Shape::Lamp { rated_v } => (v / rated_v)
+                .max(LAMP_MIN_FRACTION)
+                .powf(LAMP_CURRENT_EXPONENT - 1.0),
+            Shape::ConstantPower { floor_v } => {
+                let v_eff = v.max(floor_v);
+                1.0 / (v_eff * v_eff)
+            }
+        }
+    }
+}
+
 impl Characteristic {
+    /// The admittance in `state` as a [`Shape`] and its coefficient, when it depends on the
+    /// voltage: `admittance(v, state)` = coefficient · factor(v) (`None` for the linear models, a
+    /// stalled motor and a dropped-out supply, whose admittance is a constant of the state).
+    pub fn split(&self, state: State) -> Option<(Shape, Complex64)> {
+        match (self.model, state) {
+            (Model::Resistive | Model::Impedance, _) => None,
+            (Model::Lamp, _) => Some((
+                Shape::Lamp {
+                    rated_v: self.rated_v,
+                },
+                Complex64::new(self.g_rated, 0.0),
+            )),
+            (Model::Motor, State::Stalled) => None,
+            (Model::Electronic { .. }, State::DroppedOut) => None,
+            (Model::Motor | Model::Electronic { .. }, _) => Some((
+                Shape::ConstantPower {
+                    floor_v: self.floor_v,
+                },
+                self.s_conj,
+            )),
+        }
+    }
+
     /// See [`Load::admittance`].
     pub fn admittance(&self, v: f64, state: State) -> Complex64 {
-        let vr2 = self.rated_v * self.rated_v;
+        match self.split(state) {
+            Some((shape, coefficient)) => coefficient * shape.factor(v),
+            None => self.constant(state),
+        }
+    }
+
+    /// The admittance of a load whose admittance does not depend on its voltage in `state`.
+    fn constant(&self, state: State) -> Complex64 {
         match (self.model, state) {
             (Model::Resistive, _) => Complex64::new(self.g_rated, 0.0),
-            (Model::Impedance, _) => self.s_conj / vr2,
-            (Model::Lamp, _) => {
-                let frac = (v / self.rated_v).max(LAMP_MIN_FRACTION);
-                Complex64::new(self.g_rated * frac.powf(LAMP_CURRENT_EXPONENT - 1.0), 0.0)
-            }
-            (Model::Motor, State::Stalled) => self.y_stalled,
-            (Model::Electronic { .. }, State::DroppedOut) => {
+            (Model::Impedance, _) => self.s_conj / (self.rated_v * self.rated_v),
+            (Model::Motor, _) => self.y_stalled,
+            (Model::Electronic { .. }, _) => {
                 Complex64::new(ELECTRONIC_STANDBY_FRACTION * self.g_rated, 0.0)
             }
-            (Model::Motor | Model::Electronic { .. }, _) => {
-                let v_eff = v.max(self.floor_v);
-                self.s_conj / (v_eff * v_eff)
-            }
+            // A lamp always depends on its voltage ([`Self::split`]); at rated voltage it is P/V_r².
+            (Model::Lamp, _) => Complex64::new(self.g_rated, 0.0),
         }
     }
 }

@@ -102,6 +102,9 @@ pub struct Network {
     pub(crate) source: Source,
     /// Z_s⁻¹ at the fundamental, worked out once (`None` when stiff or singular).
     pub(crate) source_y1: Option<[[Complex64; 3]; 3]>,
+    /// Z_s⁻¹ at every harmonic order a load injects, worked out once: every neutral state and
+    /// every solve of this network uses the same.
+    pub(crate) source_yh: Vec<(u32, Option<[[Complex64; 3]; 3]>)>,
     pub(crate) neutral: NeutralPath,
     /// The earth path's resistance beside the neutral conductor, ohms.
     pub(crate) earth_ohms: Option<f64>,
@@ -190,6 +193,7 @@ impl Network {
             emf,
             source,
             source_y1: None,
+            source_yh: Vec::new(),
             neutral: NeutralPath::Solid,
             earth_ohms: job.earth_ohms(),
             service_hot: hot,
@@ -200,7 +204,27 @@ impl Network {
         };
         net.set_neutral(job.neutral());
         net.source_y1 = net.source_y_at(1);
+        let mut orders: Vec<u32> = job
+            .loads()
+            .iter()
+            .flat_map(|l| l.harmonics().iter().map(|(h, _)| *h))
+            .collect();
+        orders.sort_unstable();
+        orders.dedup();
+        net.source_yh = orders.iter().map(|&h| (h, net.source_y_at(h))).collect();
         net
+    }
+
+    /// The source admittance matrix at order `h` (worked out once per order when a load lists it),
+    /// or `None` when stiff or singular.
+    pub(crate) fn source_y(&self, h: u32) -> Option<[[Complex64; 3]; 3]> {
+        match h {
+            1 => self.source_y1,
+            _ => match self.source_yh.iter().find(|(o, _)| *o == h) {
+                Some((_, y)) => *y,
+                None => self.source_y_at(h),
+            },
+        }
     }
 
     /// Changes the service neutral's state in place (the sweep solves one network at many

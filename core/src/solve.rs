@@ -11,7 +11,7 @@
 //! converges or returns a [`SolveError`]; it never returns NaN.
 
 use crate::linalg::{div, inv, solve_in_place};
-use crate::loads::{Model, State};
+use crate::loads::{Characteristic, Model, Shape, State};
 use crate::network::{at_harmonic, Network, NeutralPath, Node, Source, NEUTRAL_INDEX};
 use num_complex::Complex64;
 
@@ -163,34 +163,58 @@ impl Solution {
     }
 }
 
-/// Marks a node that stands for the reference (the transformer neutral) in an [`Element`].
+/// Marks a node that stands for the reference (the transformer neutral) in a stamp.
 const REFERENCE: usize = usize::MAX;
 
-/// A two-terminal admittance between node indices (`b` may be [`REFERENCE`]).
-struct Element {
-    a: usize,
-    b: usize,
-    y: Complex64,
+/// The nodal equations as stamped so far: the admittance matrix (n × n, row-major), the
+/// right-hand side, and which nodes an element ties to the reference.
+#[derive(Clone)]
+struct Stamped {
+    y: Vec<Complex64>,
+    rhs: Vec<Complex64>,
+    grounded: Vec<bool>,
 }
 
-/// A current source drawing `i` out of node `a` and returning it into node `b`.
-struct Injection {
-    a: usize,
-    b: usize,
-    i: Complex64,
+impl Stamped {
+    fn new(n: usize) -> Stamped {
+        Stamped {
+            y: vec![ZERO; n * n],
+            rhs: vec![ZERO; n],
+            grounded: vec![false; n],
+        }
+    }
+
+    /// Becomes a copy of `other` without allocating.
+    fn copy_from(&mut self, other: &Stamped) {
+        self.y.copy_from_slice(&other.y);
+        self.rhs.copy_from_slice(&other.rhs);
+        self.grounded.copy_from_slice(&other.grounded);
+    }
+
+    /// Adds admittance `y` between nodes `a` and `b` (`b` may be [`REFERENCE`]).
+    #[inline]
+    fn admit(&mut self, n: usize, a: usize, b: usize, y: Complex64) {
+        stamp(&mut self.y, &mut self.grounded, n, a, b, y);
+    }
+
+    /// Adds a current source drawing `i` out of node `a` into node `b`.
+    #[inline]
+    fn inject(&mut self, a: usize, b: usize, i: Complex64) {
+        self.rhs[a] -= i;
+        self.rhs[b] += i;
+    }
 }
 
 /// The part of the nodal equations that does not depend on the loads at one order: the source,
 /// the neutral conductor, the earth path and the shared neutrals, and the nodes held fixed.
 struct Base {
     order: u32,
-    y: Vec<Complex64>,
-    rhs: Vec<Complex64>,
-    grounded: Vec<bool>,
+    eq: Stamped,
     fixed: Vec<Option<Complex64>>,
 }
 
 /// Adds admittance `y` between nodes `a` and `b` (`b` may be [`REFERENCE`]) of an n-node matrix.
+#[inline]
 fn stamp(
     y_mat: &mut [Complex64],
     grounded: &mut [bool],
@@ -217,9 +241,7 @@ impl Base {
         let legs = net.leg_count();
         let mut base = Base {
             order: h,
-            y: vec![ZERO; n * n],
-            rhs: vec![ZERO; n],
-            grounded: vec![false; n],
+            eq: Stamped::new(n),
             fixed: vec![None; n],
         };
         match net.source() {
@@ -229,40 +251,65 @@ impl Base {
                 }
             }
             Source::Thevenin { .. } => {
-                let ys = if h == 1 {
-                    net.source_y1.ok_or(SolveError::Singular)?
-                } else {
-                    net.source_y_at(h).ok_or(SolveError::Singular)?
-                };
+                let ys = net.source_y(h).ok_or(SolveError::Singular)?;
                 for i in 0..legs {
-                    base.grounded[i] = true;
+                    base.eq.grounded[i] = true;
                     for j in 0..legs {
-                        base.y[i * n + j] += ys[i][j];
+                        base.eq.y[i * n + j] += ys[i][j];
                         if h == 1 {
-                            base.rhs[i] += ys[i][j] * net.emf()[j];
+                            base.eq.rhs[i] += ys[i][j] * net.emf()[j];
                         }
                     }
                 }
             }
         }
-        let (y, g) = (&mut base.y, &mut base.grounded);
+        let eq = &mut base.eq;
         match net.neutral() {
             NeutralPath::Solid => base.fixed[NEUTRAL_INDEX] = Some(ZERO),
             NeutralPath::Conductor(_) => {
-                stamp(y, g, n, NEUTRAL_INDEX, REFERENCE, neutral_y(net, h));
+                eq.admit(n, NEUTRAL_INDEX, REFERENCE, neutral_y(net, h));
             }
             NeutralPath::Open => {}
         }
         if net.earth_ohms().is_some() {
-            stamp(y, g, n, NEUTRAL_INDEX, REFERENCE, earth_y(net));
+            eq.admit(n, NEUTRAL_INDEX, REFERENCE, earth_y(net));
         }
         for (k, s) in net.shared().iter().enumerate() {
             if !s.open && !s.is_solid() {
                 let ys = inv(at_harmonic(s.z, h));
-                stamp(y, g, n, Node::Shared(k).index(), NEUTRAL_INDEX, ys);
+                eq.admit(n, Node::Shared(k).index(), NEUTRAL_INDEX, ys);
             }
         }
         Ok(base)
+    }
+}
+
+/// What the load loop reads of each load, in flat arrays: the hot path touches nothing else.
+struct LoadTable {
+    /// The load's two node indices (see [`ends`]).
+    ends: Vec<(usize, usize)>,
+    /// Its branch conductors' impedance at the fundamental (zero when none).
+    branch: Vec<Complex64>,
+    on: Vec<bool>,
+    /// Switched on and of a model whose admittance depends on its voltage (lamp, motor,
+    /// electronic supply): its terminal voltage is watched for convergence.
+    watched: Vec<bool>,
+    characteristic: Vec<Characteristic>,
+}
+
+impl LoadTable {
+    fn new(net: &Network) -> LoadTable {
+        let loads = net.loads();
+        LoadTable {
+            ends: loads.iter().map(|p| ends(net, p)).collect(),
+            branch: loads.iter().map(|p| p.branch).collect(),
+            on: loads.iter().map(|p| p.load.is_on()).collect(),
+            watched: loads
+                .iter()
+                .map(|p| p.load.is_on() && p.load.model().is_nonlinear())
+                .collect(),
+            characteristic: loads.iter().map(|p| p.characteristic).collect(),
+        }
     }
 }
 
@@ -270,18 +317,18 @@ impl Base {
 struct Workspace {
     n: usize,
     base: Base,
-    y: Vec<Complex64>,
-    rhs: Vec<Complex64>,
+    /// The base with the loads a pass of the iteration holds constant.
+    pass: Stamped,
+    /// The equations being solved.
+    eq: Stamped,
     a: Vec<Complex64>,
     b: Vec<Complex64>,
     unknown: Vec<usize>,
-    grounded: Vec<bool>,
     reach: Vec<bool>,
     stack: Vec<usize>,
     /// The node voltages of the last solve.
     v: Vec<Option<Complex64>>,
-    /// Each load's two node indices (see [`ends`]).
-    ends: Vec<(usize, usize)>,
+    table: LoadTable,
 }
 
 impl Workspace {
@@ -290,16 +337,15 @@ impl Workspace {
         Ok(Workspace {
             n,
             base: Base::new(net, 1)?,
-            y: vec![ZERO; n * n],
-            rhs: vec![ZERO; n],
+            pass: Stamped::new(n),
+            eq: Stamped::new(n),
             a: Vec::with_capacity(n * n),
             b: Vec::with_capacity(n),
             unknown: Vec::with_capacity(n),
-            grounded: vec![false; n],
             reach: vec![false; n],
             stack: Vec::with_capacity(n),
             v: vec![None; n],
-            ends: net.loads().iter().map(|p| ends(net, p)).collect(),
+            table: LoadTable::new(net),
         })
     }
 }
@@ -319,38 +365,25 @@ fn earth_y(net: &Network) -> Complex64 {
         .unwrap_or(ZERO)
 }
 
-/// Solves the node voltages into `ws.v` at the order of `ws.base` (1 = fundamental, where the
-/// source EMFs act) with the loads' `elements` and `injections`.
+/// Solves the equations stamped in `ws.eq` (at the order of `ws.base`, whose fixed nodes hold)
+/// into the node voltages `ws.v`.
 // The admittance matrix is stamped by node index; indices read more clearly than iterators here.
 #[allow(clippy::needless_range_loop)]
-fn nodal(
-    elements: &[Element],
-    injections: &[Injection],
-    ws: &mut Workspace,
-) -> Result<(), SolveError> {
+fn nodal(ws: &mut Workspace) -> Result<(), SolveError> {
     let n = ws.n;
-    ws.y.copy_from_slice(&ws.base.y);
-    ws.rhs.copy_from_slice(&ws.base.rhs);
-    ws.grounded.copy_from_slice(&ws.base.grounded);
-    for e in elements {
-        stamp(&mut ws.y, &mut ws.grounded, n, e.a, e.b, e.y);
-    }
-    for s in injections {
-        ws.rhs[s.a] -= s.i;
-        ws.rhs[s.b] += s.i;
-    }
     let fixed = &ws.base.fixed;
+    let eq = &ws.eq;
     // A node has a voltage when a chain of elements joins it to the source or the reference.
     ws.stack.clear();
     for k in 0..n {
-        ws.reach[k] = fixed[k].is_some() || ws.grounded[k];
+        ws.reach[k] = fixed[k].is_some() || eq.grounded[k];
         if ws.reach[k] {
             ws.stack.push(k);
         }
     }
     while let Some(i) = ws.stack.pop() {
         for j in 0..n {
-            if !ws.reach[j] && ws.y[i * n + j] != ZERO {
+            if !ws.reach[j] && eq.y[i * n + j] != ZERO {
                 ws.reach[j] = true;
                 ws.stack.push(j);
             }
@@ -363,15 +396,15 @@ fn nodal(
     ws.a.clear();
     ws.b.clear();
     for &i in &ws.unknown {
-        let mut r = ws.rhs[i];
+        let mut r = eq.rhs[i];
         for (k, f) in fixed.iter().enumerate() {
             if let Some(v) = f {
-                r -= ws.y[i * n + k] * v;
+                r -= eq.y[i * n + k] * v;
             }
         }
         ws.b.push(r);
         for &j in &ws.unknown {
-            ws.a.push(ws.y[i * n + j]);
+            ws.a.push(eq.y[i * n + j]);
         }
     }
     solve_in_place(&mut ws.a, &mut ws.b, m).ok_or(SolveError::Singular)?;
@@ -498,6 +531,9 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
     let n = net.loads().len();
     let mut ws = Workspace::new(net)?;
     let mut states = vec![State::Running; n];
+    // Every load starts running at its admittance at rated voltage, whatever was solved before:
+    // a service can have more than one steady state (which motor stalls), and starting from a
+    // neighbouring solution could land in another one than this state solved alone.
     let mut y: Vec<Complex64> = net
         .loads()
         .iter()
@@ -547,7 +583,7 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
             .iter()
             .enumerate()
             .map(|(k, p)| {
-                let (a, b) = ws.ends[k];
+                let (a, b) = ws.table.ends[k];
                 pair(&v, a, b).map(|vp| at_terminals(vp, p.branch, y[k]).norm())
             })
             .collect();
@@ -617,8 +653,64 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
     })
 }
 
+/// Loads whose admittance varies with their voltage in the same way on the same two nodes: they
+/// see one terminal voltage, so the factor of their [`Shape`] is worked out once for all of them.
+/// A load with branch conductors of its own has a terminal voltage of its own and is a group
+/// alone.
+struct Group {
+    a: usize,
+    b: usize,
+    shape: Shape,
+    /// Zero, or the branch impedance of the group's one load.
+    branch: Complex64,
+    /// The loads of the group with their coefficients.
+    members: Vec<(usize, Complex64)>,
+    /// The sum of the members' admittances at this step.
+    y: Complex64,
+    /// The terminal voltage of the last step.
+    last_vt: Option<Complex64>,
+}
+
+/// Gathers the loads whose admittance varies in `states` into [`Group`]s.
+fn groups(table: &LoadTable, states: &[State]) -> Vec<Group> {
+    let mut out: Vec<Group> = Vec::new();
+    for (k, state) in states.iter().enumerate() {
+        if !table.watched[k] {
+            continue;
+        }
+        let Some((shape, coefficient)) = table.characteristic[k].split(*state) else {
+            continue;
+        };
+        let (a, b) = table.ends[k];
+        let branch = table.branch[k];
+        let joins = (branch == ZERO)
+            .then(|| {
+                out.iter_mut()
+                    .find(|g| g.a == a && g.b == b && g.shape == shape && g.branch == ZERO)
+            })
+            .flatten();
+        match joins {
+            Some(g) => g.members.push((k, coefficient)),
+            None => out.push(Group {
+                a,
+                b,
+                shape,
+                branch,
+                members: vec![(k, coefficient)],
+                y: ZERO,
+                last_vt: None,
+            }),
+        }
+    }
+    out
+}
+
 /// The fixed-point iteration y ← load admittance at the voltage the last solve gave, damped when the
 /// change grows.
+///
+/// The loads whose admittance cannot change in this pass (linear models, and a motor stalled or a
+/// supply dropped out, whose admittance is a constant of its state) are stamped once; each step
+/// restamps only the others, a [`Group`] at a time.
 fn iterate(
     net: &Network,
     states: &[State],
@@ -626,49 +718,60 @@ fn iterate(
     ws: &mut Workspace,
 ) -> Result<(Vec<Option<Complex64>>, usize), Unsettled> {
     let tol = TOLERANCE * net.system().volts_to_neutral();
-    let mut last_vt: Vec<Option<Complex64>> = vec![None; y.len()];
+    let n = ws.n;
     let mut last_change = f64::INFINITY;
-    let mut step = 1.0;
-    let nonlinear = net
-        .loads()
-        .iter()
-        .any(|p| p.load.is_on() && p.load.model().is_nonlinear());
-    let mut elements: Vec<Element> = Vec::with_capacity(y.len());
+    let mut step: f64 = 1.0;
+    let nonlinear = ws.table.watched.iter().any(|w| *w);
+    let mut groups = groups(&ws.table, states);
+    let mut varies = vec![false; y.len()];
+    for g in &groups {
+        for (k, _) in &g.members {
+            varies[*k] = true;
+        }
+    }
+    // Watched loads held constant in this pass still count towards convergence.
+    let mut steady: Vec<(usize, Option<Complex64>)> = (0..y.len())
+        .filter(|&k| ws.table.watched[k] && !varies[k])
+        .map(|k| (k, None))
+        .collect();
+    ws.pass.copy_from(&ws.base.eq);
+    for k in 0..y.len() {
+        if ws.table.on[k] && !varies[k] {
+            let (a, b) = ws.table.ends[k];
+            ws.pass
+                .admit(n, a, b, with_branch(y[k], ws.table.branch[k]));
+        }
+    }
     for iteration in 1..=MAX_ITERATIONS {
-        elements.clear();
-        elements.extend(
-            net.loads()
-                .iter()
-                .zip(y.iter())
-                .zip(&ws.ends)
-                .filter(|((p, _), _)| p.load.is_on())
-                .map(|((p, yk), &(a, b))| Element {
-                    a,
-                    b,
-                    y: with_branch(*yk, p.branch),
-                }),
-        );
-        nodal(&elements, &[], ws).map_err(|_| Unsettled::Singular)?;
+        ws.eq.copy_from(&ws.pass);
+        for g in &mut groups {
+            g.y = g.members.iter().map(|(k, _)| y[*k]).sum();
+            ws.eq.admit(n, g.a, g.b, with_branch(g.y, g.branch));
+        }
+        nodal(ws).map_err(|_| Unsettled::Singular)?;
         let v = &ws.v;
         if !nonlinear {
             return Ok((v.clone(), iteration));
         }
         // Work in squared magnitudes: this loop is the engine's hot path and hypot is slow.
         let mut change_sq: f64 = 0.0;
-        for (k, p) in net.loads().iter().enumerate() {
-            if !p.load.is_on() || !p.load.model().is_nonlinear() {
-                continue;
-            }
-            let (a, b) = ws.ends[k];
-            let Some(vp) = pair(v, a, b) else {
-                continue;
-            };
-            let vt = at_terminals(vp, p.branch, y[k]);
-            change_sq = match last_vt[k] {
+        let mut watch = |last: &mut Option<Complex64>, vt: Complex64| {
+            change_sq = match *last {
                 Some(prev) => change_sq.max((vt - prev).norm_sqr()),
                 None => f64::INFINITY,
             };
-            last_vt[k] = Some(vt);
+            *last = Some(vt);
+        };
+        for g in &mut groups {
+            if let Some(vp) = pair(v, g.a, g.b) {
+                watch(&mut g.last_vt, at_terminals(vp, g.branch, g.y));
+            }
+        }
+        for (k, last) in &mut steady {
+            let (a, b) = ws.table.ends[*k];
+            if let Some(vp) = pair(v, a, b) {
+                watch(last, at_terminals(vp, ws.table.branch[*k], y[*k]));
+            }
         }
         let change = change_sq.sqrt();
         // Return before updating the admittances, so the voltages handed back are exactly the
@@ -676,13 +779,13 @@ fn iterate(
         if change <= tol {
             return Ok((v.clone(), iteration));
         }
-        for (k, p) in net.loads().iter().enumerate() {
-            if let (true, true, Some(vt)) =
-                (p.load.is_on(), p.load.model().is_nonlinear(), last_vt[k])
-            {
+        for g in &groups {
+            if let Some(vt) = g.last_vt {
                 // hypot is slow and this is the hot path; the squares stay far from overflow.
-                let target = p.characteristic.admittance(vt.norm_sqr().sqrt(), states[k]);
-                y[k] += (target - y[k]) * step;
+                let factor = g.shape.factor(vt.norm_sqr().sqrt());
+                for (k, coefficient) in &g.members {
+                    y[*k] += (coefficient * factor - y[*k]) * step;
+                }
             }
         }
         if change.is_finite() && change > last_change {
@@ -690,9 +793,18 @@ fn iterate(
         }
         last_change = change;
     }
+    let mut last_vt: Vec<Option<f64>> = vec![None; y.len()];
+    for g in &groups {
+        for (k, _) in &g.members {
+            last_vt[*k] = g.last_vt.map(|v| v.norm());
+        }
+    }
+    for (k, last) in &steady {
+        last_vt[*k] = last.map(|v| v.norm());
+    }
     Err(Unsettled::Collapse {
         iterations: MAX_ITERATIONS,
-        last_vt: last_vt.iter().map(|v| v.map(|v| v.norm())).collect(),
+        last_vt,
     })
 }
 
@@ -760,7 +872,7 @@ fn finish(
     let mut into_neutral = ZERO;
     let mut shared_current = vec![ZERO; net.shared().len()];
     for (k, p) in net.loads().iter().enumerate() {
-        let (a, b) = ws.ends[k];
+        let (a, b) = ws.table.ends[k];
         let panel_v = pair(&v, a, b);
         let (terminal_v, current) = match (p.load.is_on(), panel_v) {
             (true, Some(vp)) => {
@@ -854,19 +966,33 @@ fn solve_harmonics(
     let mut harmonic_sq = vec![0.0; y.len()];
     // Each load's series impedance at the fundamental, worked out once for all orders.
     let z1: Vec<Complex64> = y.iter().map(|yk| inv(*yk)).collect();
-    let mut elements = Vec::with_capacity(y.len());
-    let mut injections = Vec::new();
     let mut source_of = vec![ZERO; y.len()];
+    let n = ws.n;
     let mut y_h = vec![ZERO; y.len()];
+    // Each source's fundamental current and terminal-voltage angle, the same at every order.
+    let fundamental: Vec<(f64, f64)> = sol
+        .loads
+        .iter()
+        .zip(&is_source)
+        .map(|(r, s)| match s {
+            true => (
+                r.current.norm(),
+                r.terminal_v.map(|v| v.arg()).unwrap_or(0.0),
+            ),
+            false => (0.0, 0.0),
+        })
+        .collect();
     for h in orders {
-        elements.clear();
-        injections.clear();
+        if ws.base.order != h {
+            ws.base = Base::new(net, h)?;
+        }
+        ws.eq.copy_from(&ws.base.eq);
         let hf = f64::from(h);
         for (k, p) in net.loads().iter().enumerate() {
             if !p.load.is_on() {
                 continue;
             }
-            let (a, b) = ws.ends[k];
+            let (a, b) = ws.table.ends[k];
             let zb = at_harmonic(p.branch, h);
             if is_source[k] {
                 let frac: f64 = p
@@ -876,28 +1002,21 @@ fn solve_harmonics(
                     .filter(|(o, _)| *o == h)
                     .map(|(_, f)| f)
                     .sum();
-                let angle = sol.loads[k].terminal_v.map(|v| v.arg()).unwrap_or(0.0);
-                let i_src = Complex64::from_polar(frac * sol.loads[k].current.norm(), hf * angle);
+                let (i1, angle) = fundamental[k];
+                let i_src = Complex64::from_polar(frac * i1, hf * angle);
                 let y_norton = Complex64::new(y[k].re, y[k].im / hf);
                 let through = Complex64::new(1.0, 0.0) + zb * y_norton;
                 y_h[k] = div(y_norton, through);
                 source_of[k] = div(i_src, through);
                 if source_of[k] != ZERO {
-                    injections.push(Injection {
-                        a,
-                        b,
-                        i: source_of[k],
-                    });
+                    ws.eq.inject(a, b, source_of[k]);
                 }
             } else {
                 y_h[k] = inv(at_harmonic(z1[k], h) + zb);
             }
-            elements.push(Element { a, b, y: y_h[k] });
+            ws.eq.admit(n, a, b, y_h[k]);
         }
-        if ws.base.order != h {
-            ws.base = Base::new(net, h)?;
-        }
-        nodal(&elements, &injections, ws)?;
+        nodal(ws)?;
         let v = &ws.v;
         let mut legs = [ZERO; 3];
         let mut into_neutral = ZERO;
@@ -906,7 +1025,7 @@ fn solve_harmonics(
             if !p.load.is_on() {
                 continue;
             }
-            let (a, b) = ws.ends[k];
+            let (a, b) = ws.table.ends[k];
             let through = pair(v, a, b).map(|vp| vp * y_h[k]).unwrap_or(ZERO);
             let i = through + if is_source[k] { source_of[k] } else { ZERO };
             harmonic_sq[k] += i.norm_sqr();

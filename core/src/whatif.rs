@@ -102,6 +102,9 @@ pub fn sweep(job: &Job, points: &[Option<f64>]) -> Result<Sweep, SolveError> {
             outcomes: Vec::with_capacity(points.len()),
         })
         .collect();
+    // Each point is solved from a cold start, as the what-if solves it alone: a warm start from
+    // the neighbouring point can settle in another steady state where the service has two (a
+    // motor that stalls from cold keeps running when reached from a lighter neighbour).
     for p in points {
         net.set_neutral(match p {
             Some(ohms) => NeutralState::Loose { ohms: *ohms },

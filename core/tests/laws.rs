@@ -277,6 +277,34 @@ proptest! {
         prop_assert!(jump.abs() < 0.02 * 240.0, "jump into open {jump} V");
     }
 
+    /// The sweep over one network and a second, simpler path that solves each point's neutral
+    /// state on its own agree: the same voltage for every appliance to 1e-6 of the line-to-neutral
+    /// voltage. (This caught a warm start from the neighbouring point, which on a service with two
+    /// steady states kept a motor running that a solve of that state alone stalls.)
+    #[test]
+    fn sweep_matches_each_state_solved_alone(v in gen::job(false)) {
+        use tapline_core::solve::solve_fundamental;
+        use tapline_core::validated::NeutralState as State;
+        let job = parse(&v);
+        let points = sweep_points(24);
+        let Ok(s) = sweep(&job, &points) else { return Ok(()) };
+        let mut net = Network::new(&job);
+        let vn = job.system().volts_to_neutral();
+        for (i, p) in points.iter().enumerate() {
+            net.set_neutral(match p { Some(o) => State::Loose { ohms: *o }, None => State::Open });
+            let alone = solve_fundamental(&net).unwrap();
+            for (k, r) in alone.loads.iter().enumerate() {
+                let swept = s.loads[k].volts[i];
+                let solved = r.terminal_v.map(|v| v.norm());
+                match (swept, solved) {
+                    (Some(a), Some(b)) => prop_assert!((a - b).abs() < 1e-6 * vn,
+                        "point {i}, load {k}: swept {a} V, solved alone {b} V"),
+                    (a, b) => prop_assert_eq!(a.is_some(), b.is_some()),
+                }
+            }
+        }
+    }
+
     /// Job → JSON → job is lossless, including fields of the wrong type kept for reporting.
     #[test]
     fn job_round_trip_is_lossless(v in gen::job(false), junk in any::<bool>()) {
