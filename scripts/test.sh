@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # Sets up what is missing and runs every check: formatting, lints, the Rust unit, integration,
 # property and reference tests (including the ngspice cross-check), the OpenDSS cross-check, the
-# release WebAssembly build, the size budget and the browser tests in headless Chromium.
+# release WebAssembly build, the size budget, the start-up check and the browser tests in headless
+# Chromium.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 scripts/setup.sh test
@@ -26,5 +27,7 @@ step "release build"
 trunk build --release --offline
 step "size"
 scripts/size-check.sh
+step "start-up (offline cold starts, CPU slowed 4x)"
+node scripts/startup-check.mjs
 step "browser tests (headless Chromium, phone size)"
 node --test tests/browser/

@@ -107,7 +107,8 @@ fn JobCard(entry: Entry, offset: f64) -> impl IntoView {
     let id = StoredValue::new(entry.id.clone());
     let new_name = RwSignal::new(name.clone());
     let export_name = files::file_name(&name);
-    let export_text = job_to_json(&entry.stored.job);
+    // Written out only when exported: the list opens without serializing every job.
+    let job = StoredValue::new(entry.stored.job.clone());
     view! {
         <li class="job-card" data-testid="job-card">
             <button class="job-open" data-testid="open-job" on:click=move |_| state.go(crate::route::Route::job(&id.get_value(), crate::state::Tab::Results))>
@@ -126,7 +127,7 @@ fn JobCard(entry: Entry, offset: f64) -> impl IntoView {
                 <button data-testid="duplicate-job" on:click=move |_| state.duplicate(&id.get_value())>"Duplicate"</button>
                 <button data-testid="rename-job" on:click=move |_| renaming.update(|r| *r = !*r)>"Rename"</button>
                 <button data-testid="export-job" on:click=move |_| {
-                    if let Err(e) = files::download(&export_name, &export_text) { state.banner(e) }
+                    if let Err(e) = files::download(&export_name, &job.with_value(job_to_json)) { state.banner(e) }
                 }>"Export"</button>
                 <button class="danger" data-testid="delete-job" on:click=move |_| state.delete(&id.get_value())>"Delete"</button>
             </div>
