@@ -60,9 +60,16 @@ pub fn solve_in_place(a: &mut [Complex64], b: &mut [Complex64], n: usize) -> Opt
         b[r] *= s;
     }
     for col in 0..n {
-        let pivot =
-            (col..n).max_by(|&i, &j| size(a[i * n + col]).total_cmp(&size(a[j * n + col])))?;
-        if size(a[pivot * n + col]) < PIVOT_TOLERANCE {
+        let mut pivot = col;
+        let mut largest = size(a[col * n + col]);
+        for i in col + 1..n {
+            let m = size(a[i * n + col]);
+            if m > largest {
+                (pivot, largest) = (i, m);
+            }
+        }
+        // Also refuses a NaN pivot, for which every comparison is false.
+        if largest.is_nan() || largest < PIVOT_TOLERANCE {
             return None;
         }
         if pivot != col {
@@ -71,13 +78,16 @@ pub fn solve_in_place(a: &mut [Complex64], b: &mut [Complex64], n: usize) -> Opt
             }
             b.swap(col, pivot);
         }
-        let d = a[col * n + col];
+        // One division per pivot: the rows are equilibrated, so |1/d| ≤ √2·1e14 and every
+        // multiplier below stays far from overflow.
+        let d_inv = inv(a[col * n + col]);
+        a[col * n + col] = d_inv;
         for row in col + 1..n {
-            let f = div(a[row * n + col], d);
+            let f = a[row * n + col] * d_inv;
             if f == Complex64::new(0.0, 0.0) {
                 continue;
             }
-            for k in col..n {
+            for k in col + 1..n {
                 let t = a[col * n + k];
                 a[row * n + k] -= f * t;
             }
@@ -90,7 +100,8 @@ pub fn solve_in_place(a: &mut [Complex64], b: &mut [Complex64], n: usize) -> Opt
         for k in row + 1..n {
             s -= a[row * n + k] * b[k];
         }
-        b[row] = div(s, a[row * n + row]);
+        // The diagonal holds the pivot's reciprocal (see above).
+        b[row] = s * a[row * n + row];
     }
     b[..n]
         .iter()

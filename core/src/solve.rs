@@ -19,8 +19,11 @@ use num_complex::Complex64;
 pub const MAX_ITERATIONS: usize = 200;
 
 /// Convergence: the largest change of any load's terminal voltage between iterations, as a fraction
-/// of the system's line-to-neutral voltage.
-pub const TOLERANCE: f64 = 1e-9;
+/// of the system's line-to-neutral voltage. One part in ten million is 12 µV on 120 V, four orders
+/// of magnitude below the 0.1 V the app shows and a meter resolves; the voltages handed back are
+/// still the exact solution for the admittances handed back, so every current balances to
+/// rounding whatever this is.
+pub const TOLERANCE: f64 = 1e-7;
 
 const ZERO: Complex64 = Complex64::new(0.0, 0.0);
 
