@@ -13,6 +13,7 @@
 use crate::linalg::{div, inv, solve_in_place};
 use crate::loads::{Characteristic, Model, Shape, State};
 use crate::network::{at_harmonic, Network, NeutralPath, Node, Source, NEUTRAL_INDEX};
+use crate::validated::NeutralState;
 use num_complex::Complex64;
 
 /// Most fixed-point iterations for one set of load states.
@@ -26,6 +27,13 @@ pub const MAX_ITERATIONS: usize = 200;
 pub const TOLERANCE: f64 = 1e-7;
 
 const ZERO: Complex64 = Complex64::new(0.0, 0.0);
+
+/// |z| as √(re² + im²), for the voltages of a solution on the hot path: validation bounds every
+/// voltage far below where the squares could overflow (and one so small that its square
+/// underflows is zero volts to any use), so `hypot`'s slower care buys nothing here.
+pub fn magnitude(z: Complex64) -> f64 {
+    z.norm_sqr().sqrt()
+}
 
 /// Why a solve failed.
 #[derive(Clone, Debug, PartialEq)]
@@ -531,8 +539,34 @@ fn gives_way(net: &Network, states: &[State], vt: &[Option<f64>], all: bool) -> 
 }
 
 fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
-    let n = net.loads().len();
     let mut ws = Workspace::new(net)?;
+    solve_in(net, harmonics, &mut ws)
+}
+
+/// Solves the fundamental of `net` in each of the neutral `states` in turn (the sweep), handing
+/// each solution to `each` with its index. The per-load table and the buffers are built once and
+/// reused, since only the neutral changes between states; each state is solved from a cold start
+/// exactly as [`solve_fundamental`] solves it alone.
+///
+/// # Errors
+/// The first [`SolveError`] met, or the first error `each` returns.
+pub fn solve_fundamental_each<E: From<SolveError>>(
+    net: &mut Network,
+    states: &[NeutralState],
+    mut each: impl FnMut(usize, &Solution) -> Result<(), E>,
+) -> Result<(), E> {
+    let mut ws = Workspace::new(net)?;
+    for (i, state) in states.iter().enumerate() {
+        net.set_neutral(*state);
+        ws.base = Base::new(net, 1)?;
+        each(i, &solve_in(net, false, &mut ws)?)?;
+    }
+    Ok(())
+}
+
+/// [`solve_with`] in a workspace made for `net` whose base is at the fundamental.
+fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Solution, SolveError> {
+    let n = net.loads().len();
     let mut states = vec![State::Running; n];
     // Every load starts running at its admittance at rated voltage, whatever was solved before:
     // a service can have more than one steady state (which motor stalls), and starting from a
@@ -555,7 +589,7 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
     let mut trial: Option<(Vec<State>, Vec<Complex64>)> = None;
     let mut total_iterations = 0;
     for _ in 0..4 * n + 4 {
-        let (v, iterations) = match iterate(net, &states, &mut y, &mut ws) {
+        let (v, iterations) = match iterate(net, &states, &mut y, ws) {
             Ok(done) => done,
             Err(Unsettled::Singular) => return Err(SolveError::Singular),
             Err(Unsettled::Collapse {
@@ -587,7 +621,7 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
             .enumerate()
             .map(|(k, p)| {
                 let (a, b) = ws.table.ends[k];
-                pair(&v, a, b).map(|vp| at_terminals(vp, p.branch, y[k]).norm())
+                pair(&v, a, b).map(|vp| magnitude(at_terminals(vp, p.branch, y[k])))
             })
             .collect();
         let below: Vec<usize> = net
@@ -648,7 +682,7 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
                     .characteristic
                     .admittance(vt[k].unwrap_or(0.0), State::Running);
             }
-            None => return finish(net, &states, &y, v, total_iterations, harmonics, &mut ws),
+            None => return finish(net, &states, &y, v, total_iterations, harmonics, ws),
         }
     }
     Err(SolveError::NoConvergence {

@@ -4,7 +4,7 @@
 use crate::classify::{classify, Context, Outcome};
 use crate::network::Network;
 use crate::report::{build, checked, Report};
-use crate::solve::{solve, solve_fundamental, SolveError};
+use crate::solve::{magnitude, solve, solve_fundamental_each, SolveError};
 use crate::validate::{Job, NeutralState};
 use serde::Serialize;
 
@@ -105,26 +105,29 @@ pub fn sweep(job: &Job, points: &[Option<f64>]) -> Result<Sweep, SolveError> {
     // Each point is solved from a cold start, as the what-if solves it alone: a warm start from
     // the neighbouring point can settle in another steady state where the service has two (a
     // motor that stalls from cold keeps running when reached from a lighter neighbour).
-    for p in points {
-        net.set_neutral(match p {
+    let states: Vec<NeutralState> = points
+        .iter()
+        .map(|p| match p {
             Some(ohms) => NeutralState::Loose { ohms: *ohms },
             None => NeutralState::Open,
-        });
-        let sol = solve_fundamental(&net)?;
+        })
+        .collect();
+    solve_fundamental_each(&mut net, &states, |_, sol| {
         for (k, ((series, r), load)) in loads
             .iter_mut()
             .zip(&sol.loads)
             .zip(job.loads())
             .enumerate()
         {
-            let v = r.terminal_v.map(|v| v.norm());
+            let v = r.terminal_v.map(magnitude);
             series.volts.push(v);
             series.outcomes.push(match v {
                 Some(v) => classify(load, v, r.state, load.is_on(), contexts[k]).0,
                 None => Outcome::Off,
             });
         }
-    }
+        Ok::<(), SolveError>(())
+    })?;
     Ok(Sweep {
         neutral_ohms: points.to_vec(),
         loads,
