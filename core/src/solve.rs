@@ -332,9 +332,14 @@ struct Workspace {
     pass: Stamped,
     /// The equations being solved.
     eq: Stamped,
+    /// The equations reduced to the unknown nodes (see [`reduce`]), and the copy being solved.
+    a0: Vec<Complex64>,
+    b0: Vec<Complex64>,
     a: Vec<Complex64>,
     b: Vec<Complex64>,
+    /// The nodes whose voltage is unknown and defined, and each node's place among them.
     unknown: Vec<usize>,
+    slot: Vec<Option<usize>>,
     reach: Vec<bool>,
     stack: Vec<usize>,
     /// The node voltages of the last solve.
@@ -350,9 +355,12 @@ impl Workspace {
             base: Base::new(net, 1)?,
             pass: Stamped::new(n),
             eq: Stamped::new(n),
+            a0: Vec::with_capacity(n * n),
+            b0: Vec::with_capacity(n),
             a: Vec::with_capacity(n * n),
             b: Vec::with_capacity(n),
             unknown: Vec::with_capacity(n),
+            slot: vec![None; n],
             reach: vec![false; n],
             stack: Vec::with_capacity(n),
             v: vec![None; n],
@@ -378,13 +386,31 @@ fn earth_y(net: &Network) -> Complex64 {
 
 /// Solves the equations stamped in `ws.eq` (at the order of `ws.base`, whose fixed nodes hold)
 /// into the node voltages `ws.v`.
+fn nodal(ws: &mut Workspace) -> Result<(), SolveError> {
+    structure(ws);
+    reduce(ws, Equations::Full);
+    start_reduced(ws);
+    solve_reduced(ws)
+}
+
+/// Which of the workspace's equations to reduce.
+#[derive(Clone, Copy)]
+enum Equations {
+    /// `ws.eq`.
+    Full,
+    /// `ws.pass`, without the loads that vary in the pass.
+    Pass,
+}
+
+/// Finds from `ws.eq` the nodes whose voltage is unknown and has a value (`ws.unknown`, with
+/// each node's place among them in `ws.slot`): a node has a voltage when a chain of elements
+/// joins it to the source or the reference.
 // The admittance matrix is stamped by node index; indices read more clearly than iterators here.
 #[allow(clippy::needless_range_loop)]
-fn nodal(ws: &mut Workspace) -> Result<(), SolveError> {
+fn structure(ws: &mut Workspace) {
     let n = ws.n;
     let fixed = &ws.base.fixed;
     let eq = &ws.eq;
-    // A node has a voltage when a chain of elements joins it to the source or the reference.
     ws.stack.clear();
     for k in 0..n {
         ws.reach[k] = fixed[k].is_some() || eq.grounded[k];
@@ -403,9 +429,23 @@ fn nodal(ws: &mut Workspace) -> Result<(), SolveError> {
     ws.unknown.clear();
     ws.unknown
         .extend((0..n).filter(|&k| ws.reach[k] && fixed[k].is_none()));
-    let m = ws.unknown.len();
-    ws.a.clear();
-    ws.b.clear();
+    ws.slot.fill(None);
+    for (r, &i) in ws.unknown.iter().enumerate() {
+        ws.slot[i] = Some(r);
+    }
+}
+
+/// Restricts `which` equations to the unknown nodes of [`structure`], moving the fixed nodes'
+/// voltages to the right-hand side, into `ws.a0` (row-major) and `ws.b0`.
+fn reduce(ws: &mut Workspace, which: Equations) {
+    let n = ws.n;
+    let fixed = &ws.base.fixed;
+    let eq = match which {
+        Equations::Full => &ws.eq,
+        Equations::Pass => &ws.pass,
+    };
+    ws.a0.clear();
+    ws.b0.clear();
     for &i in &ws.unknown {
         let mut r = eq.rhs[i];
         for (k, f) in fixed.iter().enumerate() {
@@ -413,13 +453,60 @@ fn nodal(ws: &mut Workspace) -> Result<(), SolveError> {
                 r -= eq.y[i * n + k] * v;
             }
         }
-        ws.b.push(r);
+        ws.b0.push(r);
         for &j in &ws.unknown {
-            ws.a.push(eq.y[i * n + j]);
+            ws.a0.push(eq.y[i * n + j]);
         }
     }
+}
+
+/// Adds admittance `y` between nodes `a` and `b` to the reduced equations in `ws.a`, `ws.b`: a
+/// fixed end moves its voltage's share to the right-hand side, as [`reduce`] does.
+#[inline]
+fn admit_reduced(ws: &mut Workspace, a: usize, b: usize, y: Complex64) {
+    let m = ws.unknown.len();
+    let slot = |k: usize| if k == REFERENCE { None } else { ws.slot[k] };
+    let held = |k: usize| {
+        if k == REFERENCE {
+            Some(ZERO)
+        } else {
+            ws.base.fixed[k]
+        }
+    };
+    let (sa, sb) = (slot(a), slot(b));
+    let (ha, hb) = (held(a), held(b));
+    if let Some(i) = sa {
+        ws.a[i * m + i] += y;
+        if let Some(j) = sb {
+            ws.a[i * m + j] -= y;
+        } else if let Some(v) = hb {
+            ws.b[i] += y * v;
+        }
+    }
+    if let Some(j) = sb {
+        ws.a[j * m + j] += y;
+        if let Some(i) = sa {
+            ws.a[j * m + i] -= y;
+        } else if let Some(v) = ha {
+            ws.b[j] += y * v;
+        }
+    }
+}
+
+/// Copies the reduced equations `ws.a0`, `ws.b0` (as [`reduce`] left them) into `ws.a`, `ws.b`,
+/// for [`admit_reduced`] to add to and [`solve_reduced`] to solve.
+fn start_reduced(ws: &mut Workspace) {
+    ws.a.clear();
+    ws.a.extend_from_slice(&ws.a0);
+    ws.b.clear();
+    ws.b.extend_from_slice(&ws.b0);
+}
+
+/// Solves `ws.a`·x = `ws.b` (see [`start_reduced`]) into the node voltages `ws.v`.
+fn solve_reduced(ws: &mut Workspace) -> Result<(), SolveError> {
+    let m = ws.unknown.len();
     solve_in_place(&mut ws.a, &mut ws.b, m).ok_or(SolveError::Singular)?;
-    ws.v.copy_from_slice(fixed);
+    ws.v.copy_from_slice(&ws.base.fixed);
     for (r, &i) in ws.unknown.iter().enumerate() {
         ws.v[i] = Some(ws.b[r]);
     }
@@ -779,13 +866,23 @@ fn iterate(
                 .admit(n, a, b, with_branch(y[k], ws.table.branch[k]));
         }
     }
+    // Which nodes have a voltage cannot change within the pass (no admittance here is ever
+    // exactly zero), so it is found once, and each step restamps only the varying loads into the
+    // pass's equations reduced to the unknown nodes.
+    ws.eq.copy_from(&ws.pass);
+    for g in &groups {
+        let gy: Complex64 = g.members.iter().map(|(k, _)| y[*k]).sum();
+        ws.eq.admit(n, g.a, g.b, with_branch(gy, g.branch));
+    }
+    structure(ws);
+    reduce(ws, Equations::Pass);
     for iteration in 1..=MAX_ITERATIONS {
-        ws.eq.copy_from(&ws.pass);
+        start_reduced(ws);
         for g in &mut groups {
             g.y = g.members.iter().map(|(k, _)| y[*k]).sum();
-            ws.eq.admit(n, g.a, g.b, with_branch(g.y, g.branch));
+            admit_reduced(ws, g.a, g.b, with_branch(g.y, g.branch));
         }
-        nodal(ws).map_err(|_| Unsettled::Singular)?;
+        solve_reduced(ws).map_err(|_| Unsettled::Singular)?;
         let v = &ws.v;
         if !nonlinear {
             return Ok((v.clone(), iteration));
