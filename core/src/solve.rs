@@ -1139,9 +1139,12 @@ fn solve_harmonics(
                 let (i1, angle) = fundamental[k];
                 let i_src = Complex64::from_polar(frac * i1, hf * angle);
                 let y_norton = Complex64::new(y[k].re, y[k].im / hf);
-                let through = Complex64::new(1.0, 0.0) + zb * y_norton;
-                y_h[k] = div(y_norton, through);
-                source_of[k] = div(i_src, through);
+                (y_h[k], source_of[k]) = if zb == ZERO {
+                    (y_norton, i_src)
+                } else {
+                    let through = Complex64::new(1.0, 0.0) + zb * y_norton;
+                    (div(y_norton, through), div(i_src, through))
+                };
                 if source_of[k] != ZERO {
                     ws.eq.inject(a, b, source_of[k]);
                 }
