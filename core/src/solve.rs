@@ -245,16 +245,29 @@ fn stamp(
 }
 
 impl Base {
-    // The admittance matrix is stamped by node index; indices read more clearly than iterators.
-    #[allow(clippy::needless_range_loop)]
     fn new(net: &Network, h: u32) -> Result<Base, SolveError> {
         let n = net.node_count();
-        let legs = net.leg_count();
         let mut base = Base {
             order: h,
             eq: Stamped::new(n),
             fixed: vec![None; n],
         };
+        base.fill(net, h)?;
+        Ok(base)
+    }
+
+    /// Restamps this base for `net` (of the same nodes) at order `h`, in place.
+    // The admittance matrix is stamped by node index; indices read more clearly than iterators.
+    #[allow(clippy::needless_range_loop)]
+    fn fill(&mut self, net: &Network, h: u32) -> Result<(), SolveError> {
+        let n = net.node_count();
+        let legs = net.leg_count();
+        let base = self;
+        base.order = h;
+        base.eq.y.fill(ZERO);
+        base.eq.rhs.fill(ZERO);
+        base.eq.grounded.fill(false);
+        base.fixed.fill(None);
         match net.source() {
             Source::Stiff => {
                 for k in 0..legs {
@@ -291,7 +304,7 @@ impl Base {
                 eq.admit(n, Node::Shared(k).index(), NEUTRAL_INDEX, ys);
             }
         }
-        Ok(base)
+        Ok(())
     }
 }
 
@@ -645,7 +658,7 @@ pub fn solve_fundamental_each<E: From<SolveError>>(
     let mut ws = Workspace::new(net)?;
     for (i, state) in states.iter().enumerate() {
         net.set_neutral(*state);
-        ws.base = Base::new(net, 1)?;
+        ws.base.fill(net, 1)?;
         each(i, &solve_in(net, false, &mut ws)?)?;
     }
     Ok(())
@@ -787,17 +800,19 @@ struct Group {
     shape: Shape,
     /// Zero, or the branch impedance of the group's one load.
     branch: Complex64,
-    /// The loads of the group with their coefficients.
-    members: Vec<(usize, Complex64)>,
+    /// The group's loads, as a range of the members list [`groups`] returns.
+    members: std::ops::Range<usize>,
     /// The sum of the members' admittances at this step.
     y: Complex64,
     /// The terminal voltage of the last step.
     last_vt: Option<Complex64>,
 }
 
-/// Gathers the loads whose admittance varies in `states` into [`Group`]s.
-fn groups(table: &LoadTable, states: &[State]) -> Vec<Group> {
+/// Gathers the loads whose admittance varies in `states` into [`Group`]s, with one list of every
+/// group's loads and their coefficients (each group's in load order).
+fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Complex64)>) {
     let mut out: Vec<Group> = Vec::new();
+    let mut tagged: Vec<(usize, usize, Complex64)> = Vec::new();
     for (k, state) in states.iter().enumerate() {
         if !table.watched[k] {
             continue;
@@ -809,24 +824,37 @@ fn groups(table: &LoadTable, states: &[State]) -> Vec<Group> {
         let branch = table.branch[k];
         let joins = (branch == ZERO)
             .then(|| {
-                out.iter_mut()
-                    .find(|g| g.a == a && g.b == b && g.shape == shape && g.branch == ZERO)
+                out.iter()
+                    .position(|g| g.a == a && g.b == b && g.shape == shape && g.branch == ZERO)
             })
             .flatten();
-        match joins {
-            Some(g) => g.members.push((k, coefficient)),
-            None => out.push(Group {
+        let index = joins.unwrap_or_else(|| {
+            out.push(Group {
                 a,
                 b,
                 shape,
                 branch,
-                members: vec![(k, coefficient)],
+                members: 0..0,
                 y: ZERO,
                 last_vt: None,
-            }),
-        }
+            });
+            out.len() - 1
+        });
+        tagged.push((index, k, coefficient));
     }
-    out
+    tagged.sort_unstable_by_key(|(g, k, _)| (*g, *k));
+    let mut start = 0;
+    for (i, g) in out.iter_mut().enumerate() {
+        let end = start
+            + tagged[start..]
+                .iter()
+                .take_while(|(gi, _, _)| *gi == i)
+                .count();
+        g.members = start..end;
+        start = end;
+    }
+    let members = tagged.into_iter().map(|(_, k, c)| (k, c)).collect();
+    (out, members)
 }
 
 /// The fixed-point iteration y ← load admittance at the voltage the last solve gave, damped when the
@@ -846,12 +874,10 @@ fn iterate(
     let mut last_change = f64::INFINITY;
     let mut step: f64 = 1.0;
     let nonlinear = ws.table.watched.iter().any(|w| *w);
-    let mut groups = groups(&ws.table, states);
+    let (mut groups, members) = groups(&ws.table, states);
     let mut varies = vec![false; y.len()];
-    for g in &groups {
-        for (k, _) in &g.members {
-            varies[*k] = true;
-        }
+    for (k, _) in &members {
+        varies[*k] = true;
     }
     // Watched loads held constant in this pass still count towards convergence.
     let mut steady: Vec<(usize, Option<Complex64>)> = (0..y.len())
@@ -871,7 +897,7 @@ fn iterate(
     // pass's equations reduced to the unknown nodes.
     ws.eq.copy_from(&ws.pass);
     for g in &groups {
-        let gy: Complex64 = g.members.iter().map(|(k, _)| y[*k]).sum();
+        let gy: Complex64 = members[g.members.clone()].iter().map(|(k, _)| y[*k]).sum();
         ws.eq.admit(n, g.a, g.b, with_branch(gy, g.branch));
     }
     structure(ws);
@@ -879,7 +905,7 @@ fn iterate(
     for iteration in 1..=MAX_ITERATIONS {
         start_reduced(ws);
         for g in &mut groups {
-            g.y = g.members.iter().map(|(k, _)| y[*k]).sum();
+            g.y = members[g.members.clone()].iter().map(|(k, _)| y[*k]).sum();
             admit_reduced(ws, g.a, g.b, with_branch(g.y, g.branch));
         }
         solve_reduced(ws).map_err(|_| Unsettled::Singular)?;
@@ -917,7 +943,7 @@ fn iterate(
             if let Some(vt) = g.last_vt {
                 // hypot is slow and this is the hot path; the squares stay far from overflow.
                 let factor = g.shape.factor(vt.norm_sqr().sqrt());
-                for (k, coefficient) in &g.members {
+                for (k, coefficient) in &members[g.members.clone()] {
                     y[*k] += (coefficient * factor - y[*k]) * step;
                 }
             }
@@ -929,7 +955,7 @@ fn iterate(
     }
     let mut last_vt: Vec<Option<f64>> = vec![None; y.len()];
     for g in &groups {
-        for (k, _) in &g.members {
+        for (k, _) in &members[g.members.clone()] {
             last_vt[*k] = g.last_vt.map(|v| v.norm());
         }
     }
@@ -1118,7 +1144,7 @@ fn solve_harmonics(
         .collect();
     for h in orders {
         if ws.base.order != h {
-            ws.base = Base::new(net, h)?;
+            ws.base.fill(net, h)?;
         }
         ws.eq.copy_from(&ws.base.eq);
         let hf = f64::from(h);
