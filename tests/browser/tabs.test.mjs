@@ -24,34 +24,37 @@ describe('two tabs', () => {
       await p.click('[data-testid=open-job]');
       await p.click('[data-testid=tab-service]');
     }
+    // A person types only in the tab in front, so each page is brought to the front before it
+    // is used (a page left behind may not take input events at once).
+    const use = async (p) => { await p.bringToFront(); return p; };
     const first = (await stored(a)).revision;
-    await a.fill('[data-testid=job-name]', 'Saved in tab A');
+    await (await use(a)).fill('[data-testid=job-name]', 'Saved in tab A');
     assert.equal((await stored(a)).revision, first + 1);
-    await b.fill('[data-testid=job-name]', 'Typed in tab B');
+    await (await use(b)).fill('[data-testid=job-name]', 'Typed in tab B');
     await b.waitForSelector('[data-testid=conflict]');
     assert.match(await b.textContent('[data-testid=conflict]'), /saved in another tab or window/);
     await shot(b, 'phone-two-tabs-conflict');
     assert.equal((await stored(b)).job.name, 'Saved in tab A', 'B did not overwrite A');
     // B's edit is kept as a draft meanwhile; B takes A's version.
-    await b.click('[data-testid=take-theirs]');
+    await (await use(b)).click('[data-testid=take-theirs]');
     assert.equal(await b.textContent('[data-testid=job-title]'), 'Saved in tab A');
     // Now B saves on top of what it has seen.
-    await b.fill('[data-testid=job-name]', 'Then tab B');
+    await (await use(b)).fill('[data-testid=job-name]', 'Then tab B');
     assert.equal((await stored(b)).job.name, 'Then tab B');
     // A has not seen B's save: A's next edit asks, and "save mine" wins knowingly.
-    await a.fill('[data-testid=job-name]', 'A again');
+    await (await use(a)).fill('[data-testid=job-name]', 'A again');
     await a.waitForSelector('[data-testid=conflict]');
-    await a.click('[data-testid=keep-mine]');
+    await (await use(a)).click('[data-testid=keep-mine]');
     assert.equal((await stored(a)).job.name, 'A again');
     // A deletes the job; B's next edit does not bring it back.
-    await a.click('[data-testid=back-to-jobs]');
-    await a.click('[data-testid=delete-job]');
+    await (await use(a)).click('[data-testid=back-to-jobs]');
+    await (await use(a)).click('[data-testid=delete-job]');
     assert.equal(await stored(a), null);
-    await b.fill('[data-testid=job-name]', 'Edited after the delete');
+    await (await use(b)).fill('[data-testid=job-name]', 'Edited after the delete');
     await b.waitForSelector('[data-testid=conflict]');
     assert.match(await b.textContent('[data-testid=conflict]'), /deleted in another tab/);
     assert.equal(await stored(b), null, 'not brought back');
-    await b.click('[data-testid=take-theirs]');
+    await (await use(b)).click('[data-testid=take-theirs]');
     await b.waitForSelector('[data-testid=jobs-page]');
     assert.equal(await b.locator('[data-testid=job-card]').count(), 0);
     await context.close();
