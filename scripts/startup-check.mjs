@@ -1,12 +1,12 @@
 // Start-up check: how long the installed app takes to open offline on a slow phone.
 //
 // The release build in dist/ is served on 127.0.0.1 and opened once in headless Chromium, so its
-// service worker installs and caches every file (as it does on a phone the first time). Then, five
+// service worker installs and caches every file (as it does on a phone the first time). Then, seven
 // times, a new browser process opens the same profile with the network off and the CPU slowed 4×
 // through the DevTools protocol (Emulation.setCPUThrottlingRate), and the time from the start of
 // navigation until the job list is usable is taken: the first job card is on screen and the
 // page's main thread is free again (a task queued right after the card appears has run). The
-// median of the five is checked against the budget below; every run is printed.
+// median of the seven is checked against the budget below; every run is printed.
 //
 // Usage: node scripts/startup-check.mjs (after a release build; the test command runs it).
 import { chromium } from 'playwright-core';
@@ -16,14 +16,16 @@ import { join, dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { serve } from '../tests/browser/server.mjs';
 
-// Budget for the median cold start, milliseconds: 2000 ms, about a third over today's 1.2–1.5 s on
-// the 2-core machine of DEVELOPERS.md, so that a regression fails while machine noise does not.
+// Budget for the median cold start, milliseconds: 2000 ms. Today's median is about 1.0 s on the
+// 2-core machine of DEVELOPERS.md when it is otherwise idle, and up to 1.8 s with another job
+// running beside it; the budget sits above both, so that a regression fails while machine noise
+// does not.
 // The aim is 500 ms and is not met: DEVELOPERS.md ("Where start-up time goes") shows most of it is
 // the browser loading the cached compiled module and compiling on first call the ~830 functions
 // the first screen runs, which shrinks only with the module.
 const BUDGET_MS = 2000;
 const AIM_MS = 500;
-const RUNS = 5;
+const RUNS = 7;
 const THROTTLE = 4;
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
