@@ -488,20 +488,14 @@ fn admit_reduced(ws: &mut Workspace, a: usize, b: usize, y: Complex64) {
     };
     let (sa, sb) = (slot(a), slot(b));
     let (ha, hb) = (held(a), held(b));
-    if let Some(i) = sa {
+    // Each end's row: its own diagonal, and the other end's column or its held voltage.
+    for (this, other, other_held) in [(sa, sb, hb), (sb, sa, ha)] {
+        let Some(i) = this else { continue };
         ws.a[i * m + i] += y;
-        if let Some(j) = sb {
-            ws.a[i * m + j] -= y;
-        } else if let Some(v) = hb {
-            ws.b[i] += y * v;
-        }
-    }
-    if let Some(j) = sb {
-        ws.a[j * m + j] += y;
-        if let Some(i) = sa {
-            ws.a[j * m + i] -= y;
-        } else if let Some(v) = ha {
-            ws.b[j] += y * v;
+        match (other, other_held) {
+            (Some(j), _) => ws.a[i * m + j] -= y,
+            (None, Some(v)) => ws.b[i] += y * v,
+            (None, None) => {}
         }
     }
 }
