@@ -160,7 +160,7 @@ pub fn load_jobs() -> (Vec<(String, StoredJob)>, Vec<StorageError>) {
             }
         }
     }
-    jobs.sort_by(|a, b| b.1.saved_ms.total_cmp(&a.1.saved_ms));
+    tapline_core::order::sort_by(&mut jobs, |a, b| b.1.saved_ms.total_cmp(&a.1.saved_ms));
     (jobs, problems)
 }
 

@@ -7,7 +7,8 @@
 //! their sources) and [`multiwire`] (shared-neutral circuits) → [`report`] (the JSON-facing
 //! output, checked by [`finite`]). Supporting modules hold the physics: [`system`],
 //! [`transformer`], [`conductors`], [`loads`], [`library`]; [`whatif`] runs the neutral what-if
-//! and sweep; [`tools`] holds the field tools (diagnosis from meter readings, panel balancing).
+//! and sweep; [`tools`] holds the field tools (diagnosis from meter readings, panel balancing);
+//! [`order`] is the one sort every module calls.
 //!
 //! This crate does no file, network or browser IO.
 
@@ -22,6 +23,7 @@ pub mod linalg;
 pub mod loads;
 pub mod multiwire;
 pub mod network;
+pub mod order;
 pub mod report;
 pub mod solve;
 pub mod system;

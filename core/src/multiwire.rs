@@ -70,7 +70,7 @@ pub fn check(job: &Job, net: &Network, sol: &Solution) -> Vec<MultiwireReport> {
                     Connection::Across(..) => None,
                 })
                 .collect();
-            legs.sort_unstable();
+            crate::order::sort_by(&mut legs, Ord::cmp);
             legs.dedup();
             let amps = sol.shared_rms(k);
             let same_leg = legs.len() == 1 && members.len() > 1;

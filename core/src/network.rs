@@ -209,7 +209,7 @@ impl Network {
             .iter()
             .flat_map(|l| l.harmonics().iter().map(|(h, _)| *h))
             .collect();
-        orders.sort_unstable();
+        crate::order::sort_by(&mut orders, Ord::cmp);
         orders.dedup();
         net.source_yh = orders.iter().map(|&h| (h, net.source_y_at(h))).collect();
         net

@@ -836,7 +836,7 @@ fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Compl
         });
         tagged.push((index, k, coefficient));
     }
-    tagged.sort_unstable_by_key(|(g, k, _)| (*g, *k));
+    crate::order::sort_by_key(&mut tagged, |(g, k, _)| (*g, *k));
     let mut start = 0;
     for (i, g) in out.iter_mut().enumerate() {
         let end = start
@@ -1112,7 +1112,7 @@ fn solve_harmonics(
                 .map(|(h, _)| *h)
         })
         .collect();
-    orders.sort_unstable();
+    crate::order::sort_by(&mut orders, Ord::cmp);
     orders.dedup();
     if orders.is_empty() {
         return Ok(());

@@ -109,7 +109,7 @@ impl Job {
     pub fn with_planned(&self) -> Job {
         let mut job = self.clone();
         job.loads.append(&mut job.planned);
-        job.loads.sort_by_key(|l| l.file_index);
+        crate::order::sort_by_key(&mut job.loads, |l| l.file_index);
         for l in job.loads.iter_mut() {
             l.planned = false;
         }

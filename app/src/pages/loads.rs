@@ -58,7 +58,7 @@ pub fn LoadsTab() -> impl IntoView {
                     None => groups.push((g, vec![i])),
                 }
             }
-            groups.sort_by(|a, b| a.0.cmp(&b.0));
+            tapline_core::order::sort_by(&mut groups, |a, b| a.0.cmp(&b.0));
             groups
         })
     };

@@ -183,7 +183,7 @@ fn orders_of(job: &Job) -> Vec<u32> {
             );
         }
     }
-    orders[1..].sort_unstable();
+    crate::order::sort_by(&mut orders[1..], Ord::cmp);
     orders.dedup();
     orders
 }
@@ -293,16 +293,12 @@ fn currents(job: &Job, panel: &Panel, legs: &[Option<Leg>], basis: Basis) -> Cur
     Currents {
         neutral_current_a: rms(&mut neutral.iter().copied()),
         neutral_fundamental_a: neutral[0].norm(),
-        legs: sys
-            .legs()
-            .iter()
-            .map(|l| {
-                (
-                    l.name().to_string(),
-                    rms(&mut leg_i.iter().map(|o| o[l.index()])),
-                )
-            })
-            .collect(),
+        legs: crate::order::map_of(sys.legs().iter().map(|l| {
+            (
+                l.name().to_string(),
+                rms(&mut leg_i.iter().map(|o| o[l.index()])),
+            )
+        })),
     }
 }
 
@@ -419,7 +415,7 @@ impl Search {
                 .sum();
             buf.push((k, sq));
         }
-        buf.sort_unstable_by(|a, b| a.1.total_cmp(&b.1));
+        crate::order::sort_by(&mut buf, |a, b| a.1.total_cmp(&b.1));
         if let (true, Some(s)) = (stay_first, self.items[depth].stay) {
             if let Some(pos) = buf.iter().position(|(k, _)| *k == s) {
                 let stay = buf.remove(pos);
@@ -641,7 +637,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
             let movable = hots.iter().all(|&j| cs[j].movable);
             let apart = {
                 let mut l: Vec<Option<usize>> = now_legs.clone();
-                l.sort_unstable();
+                crate::order::sort_by(&mut l, Ord::cmp);
                 l.dedup();
                 l.len() == hots.len() && l.iter().all(Option::is_some)
             };
@@ -738,7 +734,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
             stay,
         });
     }
-    items.sort_unstable_by(|a, b| b.size().total_cmp(&a.size()));
+    crate::order::sort_by(&mut items, |a, b| b.size().total_cmp(&a.size()));
 
     let dirs: [Complex64; DIRECTIONS] = std::array::from_fn(|k| {
         Complex64::from_polar(1.0, std::f64::consts::PI * k as f64 / DIRECTIONS as f64)
@@ -788,7 +784,7 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
                 .fold(0.0, f64::max);
             let most = items[d].choices.iter().map(|c| c.moves).max().unwrap_or(0);
             r.extend(std::iter::repeat_n(per_move, most));
-            r.sort_unstable_by(|a, b| b.total_cmp(a));
+            crate::order::sort_by(&mut r, |a, b| b.total_cmp(a));
         }
         reach[d] = r;
     }
@@ -1139,7 +1135,9 @@ pub fn schedule(job: &Job, layout: Layout) -> Vec<Row> {
             }
         })
         .collect();
-    rows.sort_by_key(|r| r.positions.first().copied().unwrap_or(u32::MAX));
+    crate::order::sort_by_key(&mut rows, |r| {
+        r.positions.first().copied().unwrap_or(u32::MAX)
+    });
     rows
 }
 

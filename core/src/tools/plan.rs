@@ -66,26 +66,14 @@ pub struct Plan {
 fn side(r: &Report) -> Side {
     let nominal = r.nominal_volts_to_neutral;
     Side {
-        legs_a: r
-            .legs
-            .iter()
-            .map(|(k, l)| (k.clone(), l.current_a))
-            .collect(),
-        legs_v: r
-            .legs
-            .iter()
-            .map(|(k, l)| (k.clone(), l.volts_to_neutral))
-            .collect(),
-        below_nominal_pct: r
-            .legs
-            .iter()
-            .map(|(k, l)| {
-                (
-                    k.clone(),
-                    l.volts_to_neutral.map(|v| (nominal - v) / nominal * 100.0),
-                )
-            })
-            .collect(),
+        legs_a: crate::order::map_of(r.legs.iter().map(|(k, l)| (k.clone(), l.current_a))),
+        legs_v: crate::order::map_of(r.legs.iter().map(|(k, l)| (k.clone(), l.volts_to_neutral))),
+        below_nominal_pct: crate::order::map_of(r.legs.iter().map(|(k, l)| {
+            (
+                k.clone(),
+                l.volts_to_neutral.map(|v| (nominal - v) / nominal * 100.0),
+            )
+        })),
         neutral_current_a: r.neutral_current_a,
         transformer_loading_pct: r.transformer.as_ref().map(|t| t.loading_pct),
         fault_at_service: r.fault_at_service,
