@@ -836,18 +836,24 @@ fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Compl
         });
         tagged.push((index, k, coefficient));
     }
-    crate::order::sort_by_key(&mut tagged, |(g, k, _)| (*g, *k));
-    let mut start = 0;
-    for (i, g) in out.iter_mut().enumerate() {
-        let end = start
-            + tagged[start..]
-                .iter()
-                .take_while(|(gi, _, _)| *gi == i)
-                .count();
-        g.members = start..end;
-        start = end;
+    // Each group's loads, in load order, side by side: a counting sort by group (the loads
+    // arrive in load order), with each group's range end first counting its loads and then
+    // serving as the place the next one goes.
+    for (g, _, _) in &tagged {
+        out[*g].members.end += 1;
     }
-    let members = tagged.into_iter().map(|(_, k, c)| (k, c)).collect();
+    let mut start = 0;
+    for g in out.iter_mut() {
+        let count = g.members.end;
+        g.members = start..start;
+        start += count;
+    }
+    let mut members = vec![(0, ZERO); tagged.len()];
+    for (g, k, c) in tagged {
+        let at = &mut out[g].members.end;
+        members[*at] = (k, c);
+        *at += 1;
+    }
     (out, members)
 }
 
