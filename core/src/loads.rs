@@ -364,9 +364,16 @@ impl Shape {
     #[inline]
     pub fn factor(self, v: f64) -> f64 {
         match self {
-            Shape::Lamp { rated_v } => (v / rated_v)
-                .max(LAMP_MIN_FRACTION)
-                .powf(LAMP_CURRENT_EXPONENT - 1.0),
+            Shape::Lamp { rated_v } => {
+                let x = (v / rated_v).max(LAMP_MIN_FRACTION);
+                // 1^p is exactly 1; every solve starts each lamp at its rated voltage, and a
+                // general power costs more than the rest of the step.
+                if x == 1.0 {
+                    1.0
+                } else {
+                    x.powf(LAMP_CURRENT_EXPONENT - 1.0)
+                }
+            }
             Shape::ConstantPower { floor_v } => {
                 let v_eff = v.max(floor_v);
                 1.0 / (v_eff * v_eff)

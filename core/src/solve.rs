@@ -319,6 +319,8 @@ struct LoadTable {
     /// electronic supply): its terminal voltage is watched for convergence.
     watched: Vec<bool>,
     characteristic: Vec<Characteristic>,
+    /// Its admittance running at rated voltage, where every solve starts.
+    rated_y: Vec<Complex64>,
 }
 
 impl LoadTable {
@@ -333,6 +335,13 @@ impl LoadTable {
                 .map(|p| p.load.is_on() && p.load.model().is_nonlinear())
                 .collect(),
             characteristic: loads.iter().map(|p| p.characteristic).collect(),
+            rated_y: loads
+                .iter()
+                .map(|p| {
+                    p.characteristic
+                        .admittance(p.load.rated_v(), State::Running)
+                })
+                .collect(),
         }
     }
 }
@@ -473,10 +482,25 @@ fn reduce(ws: &mut Workspace, which: Equations) {
     }
 }
 
-/// Adds admittance `y` between nodes `a` and `b` to the reduced equations in `ws.a`, `ws.b`: a
-/// fixed end moves its voltage's share to the right-hand side, as [`reduce`] does.
-#[inline]
-fn admit_reduced(ws: &mut Workspace, a: usize, b: usize, y: Complex64) {
+/// Where an admittance between two nodes lands in the reduced equations `ws.a`, `ws.b`, worked
+/// out once per pass (see [`landing`]) so that each step of the iteration only adds.
+#[derive(Clone, Copy)]
+struct Landing {
+    /// Entries of `ws.a` that gain the admittance (each unknown end's diagonal).
+    gain: [usize; 2],
+    /// Entries of `ws.a` that lose it (the off-diagonals between two unknown ends).
+    lose: [usize; 2],
+    /// Rows of `ws.b` that gain it times a held neighbour's voltage.
+    rhs: [(usize, Complex64); 2],
+}
+
+/// Marks an unused place in a [`Landing`].
+const NOWHERE: usize = usize::MAX;
+
+/// The [`Landing`] of an admittance between nodes `a` and `b` (`b` may be [`REFERENCE`]): each
+/// unknown end gains it on its diagonal and loses it towards an unknown other end; a held other
+/// end moves its voltage's share to the right-hand side, as [`reduce`] does.
+fn landing(ws: &Workspace, a: usize, b: usize) -> Landing {
     let m = ws.unknown.len();
     let slot = |k: usize| if k == REFERENCE { None } else { ws.slot[k] };
     let held = |k: usize| {
@@ -486,16 +510,38 @@ fn admit_reduced(ws: &mut Workspace, a: usize, b: usize, y: Complex64) {
             ws.base.fixed[k]
         }
     };
+    let mut out = Landing {
+        gain: [NOWHERE; 2],
+        lose: [NOWHERE; 2],
+        rhs: [(NOWHERE, ZERO); 2],
+    };
     let (sa, sb) = (slot(a), slot(b));
     let (ha, hb) = (held(a), held(b));
-    // Each end's row: its own diagonal, and the other end's column or its held voltage.
-    for (this, other, other_held) in [(sa, sb, hb), (sb, sa, ha)] {
+    for (end, (this, other, other_held)) in [(sa, sb, hb), (sb, sa, ha)].into_iter().enumerate() {
         let Some(i) = this else { continue };
-        ws.a[i * m + i] += y;
+        out.gain[end] = i * m + i;
         match (other, other_held) {
-            (Some(j), _) => ws.a[i * m + j] -= y,
-            (None, Some(v)) => ws.b[i] += y * v,
+            (Some(j), _) => out.lose[end] = i * m + j,
+            (None, Some(v)) => out.rhs[end] = (i, v),
             (None, None) => {}
+        }
+    }
+    out
+}
+
+/// Adds admittance `y` where `at` says it lands in `ws.a`, `ws.b`.
+#[inline]
+fn admit_reduced(ws: &mut Workspace, at: &Landing, y: Complex64) {
+    for end in 0..2 {
+        if at.gain[end] != NOWHERE {
+            ws.a[at.gain[end]] += y;
+        }
+        if at.lose[end] != NOWHERE {
+            ws.a[at.lose[end]] -= y;
+        }
+        let (row, v) = at.rhs[end];
+        if row != NOWHERE {
+            ws.b[row] += y * v;
         }
     }
 }
@@ -642,6 +688,11 @@ fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
 /// reused, since only the neutral changes between states; each state is solved from a cold start
 /// exactly as [`solve_fundamental`] solves it alone.
 ///
+/// The admittances are not carried over from the neighbouring state either: where a service has
+/// two steady states, a constant-power load can keep running from its neighbour's admittance
+/// while from its rated one the supply collapses and it stalls (seen on a wye service with two
+/// motors, where the two starts put 203 V and 377 V on the same appliance).
+///
 /// # Errors
 /// The first [`SolveError`] met, or the first error `each` returns.
 pub fn solve_fundamental_each<E: From<SolveError>>(
@@ -665,15 +716,13 @@ fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Soluti
     // Every load starts running at its admittance at rated voltage, whatever was solved before:
     // a service can have more than one steady state (which motor stalls), and starting from a
     // neighbouring solution could land in another one than this state solved alone.
-    let mut y: Vec<Complex64> = net
-        .loads()
-        .iter()
-        .map(|p| p.load.admittance(p.load.rated_v(), State::Running))
-        .collect();
+    let mut y: Vec<Complex64> = ws.table.rated_y.clone();
     // A motor at the instant of starting is held at locked rotor whatever its voltage.
     if let Some(k) = net.starting {
         states[k] = State::Stalled;
-        y[k] = net.loads()[k].load.admittance(0.0, State::Stalled);
+        y[k] = net.loads()[k]
+            .characteristic
+            .admittance(0.0, State::Stalled);
     }
     let held = |k: usize| net.starting == Some(k);
     // A restart is a trial: when it pulls any running load below its limit (or collapses the
@@ -704,17 +753,20 @@ fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Soluti
                     });
                 };
                 states[k] = low_state(net.loads()[k].load.model());
-                y[k] = net.loads()[k].load.admittance(0.0, states[k]);
+                y[k] = net.loads()[k].characteristic.admittance(0.0, states[k]);
                 continue;
             }
         };
         total_iterations += iterations;
+        // Only a load with a low limit (a motor, an electronic supply) gives way or restarts, so
+        // only its terminal voltage is needed here.
         let vt: Vec<Option<f64>> = net
             .loads()
             .iter()
             .enumerate()
             .map(|(k, p)| {
                 let (a, b) = ws.table.ends[k];
+                p.load.low_limit_v()?;
                 pair(&v, a, b).map(|vp| magnitude(at_terminals(vp, p.branch, y[k])))
             })
             .collect();
@@ -741,7 +793,7 @@ fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Soluti
             // decides); those that can run once the others are gone restart below.
             for k in below {
                 states[k] = low_state(net.loads()[k].load.model());
-                y[k] = net.loads()[k].load.admittance(0.0, states[k]);
+                y[k] = net.loads()[k].characteristic.admittance(0.0, states[k]);
             }
             continue;
         }
@@ -798,6 +850,13 @@ struct Group {
     members: std::ops::Range<usize>,
     /// The sum of the members' admittances at this step.
     y: Complex64,
+    /// The sum of the members' admittances when the pass began, and of their coefficients.
+    y_start: Complex64,
+    coefficients: Complex64,
+    /// Every member's admittance at this step is `kept`·(its admittance when the pass began) +
+    /// `taken`·(its coefficient): see [`iterate`].
+    kept: f64,
+    taken: f64,
     /// The terminal voltage of the last step.
     last_vt: Option<Complex64>,
 }
@@ -805,8 +864,8 @@ struct Group {
 /// Gathers the loads whose admittance varies in `states` into [`Group`]s, with one list of every
 /// group's loads and their coefficients (each group's in load order).
 fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Complex64)>) {
-    let mut out: Vec<Group> = Vec::new();
-    let mut tagged: Vec<(usize, usize, Complex64)> = Vec::new();
+    let mut out: Vec<Group> = Vec::with_capacity(states.len());
+    let mut tagged: Vec<(usize, usize, Complex64)> = Vec::with_capacity(states.len());
     for (k, state) in states.iter().enumerate() {
         if !table.watched[k] {
             continue;
@@ -830,6 +889,10 @@ fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Compl
                 branch,
                 members: 0..0,
                 y: ZERO,
+                y_start: ZERO,
+                coefficients: ZERO,
+                kept: 1.0,
+                taken: 0.0,
                 last_vt: None,
             });
             out.len() - 1
@@ -863,6 +926,12 @@ fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Compl
 /// The loads whose admittance cannot change in this pass (linear models, and a motor stalled or a
 /// supply dropped out, whose admittance is a constant of its state) are stamped once; each step
 /// restamps only the others, a [`Group`] at a time.
+///
+/// A step moves each member k of a group, of coefficient c_k, by the group's one factor f and the
+/// damping s: y_k ← y_k + (c_k·f − y_k)·s = (1 − s)·y_k + s·f·c_k. By induction every member stays
+/// y_k = kept·y_k,start + taken·c_k with two numbers per group (kept ← (1 − s)·kept, taken ←
+/// (1 − s)·taken + s·f), and so does their sum; the members' own admittances are written out
+/// once, when the pass ends, instead of at every step.
 fn iterate(
     net: &Network,
     states: &[State],
@@ -896,21 +965,34 @@ fn iterate(
     // exactly zero), so it is found once, and each step restamps only the varying loads into the
     // pass's equations reduced to the unknown nodes.
     ws.eq.copy_from(&ws.pass);
-    for g in &groups {
-        let gy: Complex64 = members[g.members.clone()].iter().map(|(k, _)| y[*k]).sum();
-        ws.eq.admit(n, g.a, g.b, with_branch(gy, g.branch));
+    for g in &mut groups {
+        for (k, coefficient) in &members[g.members.clone()] {
+            g.y_start += y[*k];
+            g.coefficients += coefficient;
+        }
+        ws.eq.admit(n, g.a, g.b, with_branch(g.y_start, g.branch));
     }
+    // The members' admittances at the current step (see above).
+    let write_out = |groups: &[Group], y: &mut [Complex64]| {
+        for g in groups {
+            for (k, coefficient) in &members[g.members.clone()] {
+                y[*k] = y[*k] * g.kept + coefficient * g.taken;
+            }
+        }
+    };
     structure(ws);
     reduce(ws, Equations::Pass);
+    let landings: Vec<Landing> = groups.iter().map(|g| landing(ws, g.a, g.b)).collect();
     for iteration in 1..=MAX_ITERATIONS {
         start_reduced(ws);
-        for g in &mut groups {
-            g.y = members[g.members.clone()].iter().map(|(k, _)| y[*k]).sum();
-            admit_reduced(ws, g.a, g.b, with_branch(g.y, g.branch));
+        for (g, at) in groups.iter_mut().zip(&landings) {
+            g.y = g.y_start * g.kept + g.coefficients * g.taken;
+            admit_reduced(ws, at, with_branch(g.y, g.branch));
         }
         solve_reduced(ws).map_err(|_| Unsettled::Singular)?;
         let v = &ws.v;
         if !nonlinear {
+            write_out(&groups, y);
             return Ok((v.clone(), iteration));
         }
         // Work in squared magnitudes: this loop is the engine's hot path and hypot is slow.
@@ -937,15 +1019,15 @@ fn iterate(
         // Return before updating the admittances, so the voltages handed back are exactly the
         // solution for the admittances handed back, and every current computed from them balances.
         if change <= tol {
+            write_out(&groups, y);
             return Ok((v.clone(), iteration));
         }
-        for g in &groups {
+        for g in &mut groups {
             if let Some(vt) = g.last_vt {
                 // hypot is slow and this is the hot path; the squares stay far from overflow.
                 let factor = g.shape.factor(vt.norm_sqr().sqrt());
-                for (k, coefficient) in &members[g.members.clone()] {
-                    y[*k] += (coefficient * factor - y[*k]) * step;
-                }
+                g.kept *= 1.0 - step;
+                g.taken = g.taken * (1.0 - step) + factor * step;
             }
         }
         if change.is_finite() && change > last_change {
@@ -953,6 +1035,7 @@ fn iterate(
         }
         last_change = change;
     }
+    write_out(&groups, y);
     let mut last_vt: Vec<Option<f64>> = vec![None; y.len()];
     for g in &groups {
         for (k, _) in &members[g.members.clone()] {
@@ -1095,103 +1178,103 @@ fn solve_harmonics(
     sol: &mut Solution,
     ws: &mut Workspace,
 ) -> Result<(), SolveError> {
-    let is_source: Vec<bool> = net
-        .loads()
-        .iter()
-        .zip(states)
-        .map(|(p, s)| {
-            p.load.is_on()
-                && *s == State::Running
-                && matches!(p.load.model(), Model::Electronic { .. })
-        })
-        .collect();
-    let mut orders: Vec<u32> = net
-        .loads()
-        .iter()
-        .zip(&is_source)
-        .filter(|(_, s)| **s)
-        .flat_map(|(p, _)| {
-            p.load
-                .harmonics()
-                .iter()
-                .filter(|(_, f)| *f > 0.0)
-                .map(|(h, _)| *h)
-        })
-        .collect();
-    crate::order::sort_by(&mut orders, Ord::cmp);
-    orders.dedup();
+    let is_source = |k: usize| {
+        let p = &net.loads()[k];
+        p.load.is_on()
+            && states[k] == State::Running
+            && matches!(p.load.model(), Model::Electronic { .. })
+    };
+    // The orders any source injects, ascending and each once: a service has a handful of distinct
+    // orders, so each is placed by a scan rather than by sorting every load's list together.
+    let mut orders: Vec<u32> = Vec::new();
+    for (k, p) in net.loads().iter().enumerate() {
+        if !is_source(k) {
+            continue;
+        }
+        for (h, f) in p.load.harmonics() {
+            if *f > 0.0 {
+                if let Err(at) = orders.binary_search(h) {
+                    orders.insert(at, *h);
+                }
+            }
+        }
+    }
     if orders.is_empty() {
         return Ok(());
     }
-    let mut harmonic_sq = vec![0.0; y.len()];
-    // Each load's series impedance at the fundamental, worked out once for all orders.
-    let z1: Vec<Complex64> = y.iter().map(|yk| inv(*yk)).collect();
-    let mut source_of = vec![ZERO; y.len()];
-    let n = ws.n;
-    let mut y_h = vec![ZERO; y.len()];
-    // Each source's fundamental current and terminal-voltage angle, the same at every order.
-    let fundamental: Vec<(f64, f64)> = sol
-        .loads
+    let mut each: Vec<Harmonic> = y
         .iter()
-        .zip(&is_source)
-        .map(|(r, s)| match s {
-            true => (
-                r.current.norm(),
-                r.terminal_v.map(|v| v.arg()).unwrap_or(0.0),
-            ),
-            false => (0.0, 0.0),
+        .zip(&sol.loads)
+        .enumerate()
+        .map(|(k, (yk, r))| {
+            if is_source(k) {
+                // The unit phasor of the source's terminal voltage (angle zero when it has none):
+                // at order h the source sits at h times that angle, which is the unit phasor's
+                // h-th power, a few complex products instead of an arctangent and a sine and
+                // cosine per order (the power drifts from unit length by about h·1e-16, far
+                // below anything reported).
+                let unit = match r.terminal_v.map(|v| (v, magnitude(v))) {
+                    Some((v, m)) if m > 0.0 => Complex64::new(v.re / m, v.im / m),
+                    _ => Complex64::new(1.0, 0.0),
+                };
+                Harmonic::source(r.current.norm(), unit)
+            } else {
+                Harmonic::passive(inv(*yk))
+            }
         })
         .collect();
+    let n = ws.n;
+    sol.harmonics.reserve_exact(orders.len());
     for h in orders {
         if ws.base.order != h {
             ws.base.fill(net, h)?;
         }
         ws.eq.copy_from(&ws.base.eq);
         let hf = f64::from(h);
-        for (k, p) in net.loads().iter().enumerate() {
+        for (k, (p, e)) in net.loads().iter().zip(&mut each).enumerate() {
             if !p.load.is_on() {
                 continue;
             }
             let (a, b) = ws.table.ends[k];
             let zb = at_harmonic(p.branch, h);
-            if is_source[k] {
-                let frac: f64 = p
-                    .load
-                    .harmonics()
-                    .iter()
-                    .filter(|(o, _)| *o == h)
-                    .map(|(_, f)| f)
-                    .sum();
-                let (i1, angle) = fundamental[k];
-                let i_src = Complex64::from_polar(frac * i1, hf * angle);
-                let y_norton = Complex64::new(y[k].re, y[k].im / hf);
-                (y_h[k], source_of[k]) = if zb == ZERO {
-                    (y_norton, i_src)
-                } else {
-                    let through = Complex64::new(1.0, 0.0) + zb * y_norton;
-                    (div(y_norton, through), div(i_src, through))
-                };
-                if source_of[k] != ZERO {
-                    ws.eq.inject(a, b, source_of[k]);
+            match e.source {
+                Some((i1, unit)) => {
+                    let frac: f64 = p
+                        .load
+                        .harmonics()
+                        .iter()
+                        .filter(|(o, _)| *o == h)
+                        .map(|(_, f)| f)
+                        .sum();
+                    let i_src = unit.powu(h) * (frac * i1);
+                    let y_norton = Complex64::new(y[k].re, y[k].im / hf);
+                    (e.y, e.injected) = if zb == ZERO {
+                        (y_norton, i_src)
+                    } else {
+                        let through = Complex64::new(1.0, 0.0) + zb * y_norton;
+                        (div(y_norton, through), div(i_src, through))
+                    };
+                    if e.injected != ZERO {
+                        ws.eq.inject(a, b, e.injected);
+                    }
                 }
-            } else {
-                y_h[k] = inv(at_harmonic(z1[k], h) + zb);
+                None => e.y = inv(at_harmonic(e.z1, h) + zb),
             }
-            ws.eq.admit(n, a, b, y_h[k]);
+            ws.eq.admit(n, a, b, e.y);
         }
         nodal(ws)?;
         let v = &ws.v;
         let mut legs = [ZERO; 3];
         let mut into_neutral = ZERO;
         let mut shared = vec![ZERO; net.shared().len()];
-        for (k, p) in net.loads().iter().enumerate() {
+        for (k, (p, e)) in net.loads().iter().zip(&mut each).enumerate() {
             if !p.load.is_on() {
                 continue;
             }
             let (a, b) = ws.table.ends[k];
-            let through = pair(v, a, b).map(|vp| vp * y_h[k]).unwrap_or(ZERO);
-            let i = through + if is_source[k] { source_of[k] } else { ZERO };
-            harmonic_sq[k] += i.norm_sqr();
+            let through = pair(v, a, b).map(|vp| vp * e.y).unwrap_or(ZERO);
+            let i = through + e.injected;
+            e.sum_sq += i.norm_sqr();
             add_branch_current(&mut legs, &mut into_neutral, &mut shared, p.a, p.b, i);
         }
         into_neutral += shared_into_neutral(net, &mut shared);
@@ -1205,8 +1288,45 @@ fn solve_harmonics(
             shared_current: shared,
         });
     }
-    for (r, sq) in sol.loads.iter_mut().zip(harmonic_sq) {
-        r.harmonic_rms = sq.sqrt();
+    for (r, e) in sol.loads.iter_mut().zip(each) {
+        r.harmonic_rms = e.sum_sq.sqrt();
     }
     Ok(())
+}
+
+/// One load in the harmonic solves of [`solve_harmonics`].
+struct Harmonic {
+    /// A source's fundamental current magnitude, amperes, and the unit phasor of its terminal
+    /// voltage; `None` for a passive load.
+    source: Option<(f64, Complex64)>,
+    /// A passive load's series impedance at the fundamental, ohms.
+    z1: Complex64,
+    /// At the order being solved: the admittance it presents (with its branch) and the current its
+    /// source injects (zero for a passive load).
+    y: Complex64,
+    injected: Complex64,
+    /// The sum over the orders solved of its current's squared magnitude, A².
+    sum_sq: f64,
+}
+
+impl Harmonic {
+    fn source(i1: f64, unit: Complex64) -> Harmonic {
+        Harmonic {
+            source: Some((i1, unit)),
+            z1: ZERO,
+            y: ZERO,
+            injected: ZERO,
+            sum_sq: 0.0,
+        }
+    }
+
+    fn passive(z1: Complex64) -> Harmonic {
+        Harmonic {
+            source: None,
+            z1,
+            y: ZERO,
+            injected: ZERO,
+            sum_sq: 0.0,
+        }
+    }
 }
