@@ -219,9 +219,12 @@ describe('jobs', () => {
     await page.click('[data-testid=duplicate-job]');
     assert.equal(await page.locator('[data-testid=job-card]').count(), 2);
     await page.locator('[data-testid=rename-job]').first().click();
-    await page.fill('[data-testid=rename-input]', 'Shop at 3 Kiln Yard');
+    await page.fill('[data-testid=rename-input]', 'Shop at 3 Kiln Yard, ÉCOLE');
     await page.click('[data-testid=rename-save]');
     await page.fill('[data-testid=job-search]', 'kiln');
+    assert.equal(await page.locator('[data-testid=job-card]').count(), 1);
+    // Case is folded beyond ASCII too (a job's name is the user's words, in any script).
+    await page.fill('[data-testid=job-search]', 'école');
     assert.equal(await page.locator('[data-testid=job-card]').count(), 1);
     await page.fill('[data-testid=job-search]', '');
     await page.locator('[data-testid=delete-job]').first().click();

@@ -1,5 +1,6 @@
 //! The list of saved jobs: search, create, import, open, duplicate, rename, export, delete, undo.
 
+use crate::components::{Keyed, KeyedList};
 use crate::edit;
 use crate::files;
 use crate::format;
@@ -44,20 +45,20 @@ pub fn JobsPage() -> impl IntoView {
     };
 
     let visible = move || {
-        let q = query.get().to_lowercase();
+        let q = folded(&query.get());
         state.jobs.with(|jobs| {
             jobs.iter()
                 .filter(|e| {
                     q.is_empty()
-                        || edit::text_of(&e.stored.job.name)
-                            .to_lowercase()
-                            .contains(&q)
-                        || edit::text_of(&e.stored.job.notes)
-                            .to_lowercase()
-                            .contains(&q)
+                        || folded(&edit::text_of(&e.stored.job.name)).contains(&q)
+                        || folded(&edit::text_of(&e.stored.job.notes)).contains(&q)
                 })
-                .cloned()
-                .collect::<Vec<Entry>>()
+                .map(|e| {
+                    let entry = e.clone();
+                    let key = format!("{}/{}", e.id, e.stored.saved_ms.to_bits());
+                    Keyed::new(key, move || view! { <JobCard entry=entry offset=offset /> })
+                })
+                .collect::<Vec<Keyed>>()
         })
     };
 
@@ -85,15 +86,20 @@ pub fn JobsPage() -> impl IntoView {
             </Show>
             <input class="search" type="search" placeholder="Search jobs" data-testid="job-search" on:input=move |ev| query.set(event_target_value(&ev)) />
             <ul class="job-list">
-                <For each=visible key=|e| (e.id.clone(), e.stored.saved_ms.to_bits()) let:entry>
-                    <JobCard entry=entry offset=offset />
-                </For>
+                <KeyedList rows=Box::new(visible) />
             </ul>
             <Show when=move || state.jobs.with(|j| j.is_empty())>
                 <p class="empty">"No saved jobs yet. Start a new one or import a job file."</p>
             </Show>
         </section>
     }
+}
+
+/// `text` in lower case by the browser's own Unicode tables (`String.prototype.toLowerCase`),
+/// which the module then need not carry: a job's name and notes are the user's words, in any
+/// script.
+fn folded(text: &str) -> String {
+    js_sys::JsString::from(text).to_lower_case().into()
 }
 
 #[component]

@@ -1,7 +1,7 @@
 //! Loads: add from the library or custom, grouped by leg with per-leg totals, on/off per load.
 
 use super::runs::ConductorFields;
-use crate::components::{NumberField, SelectField, TextField};
+use crate::components::{Keyed, KeyedList, NumberField, SelectField, TextField};
 use crate::edit;
 use crate::edit::Run;
 use crate::state::AppState;
@@ -59,7 +59,14 @@ pub fn LoadsTab() -> impl IntoView {
                 }
             }
             tapline_core::order::sort_by(&mut groups, |a, b| a.0.cmp(&b.0));
+            let structure = state.structure.get_untracked();
             groups
+                .into_iter()
+                .map(|(name, rows)| {
+                    let key = format!("{structure}/{name}/{}", rows.len());
+                    Keyed::new(key, move || view! { <LoadGroup name=name rows=rows /> })
+                })
+                .collect::<Vec<Keyed>>()
         })
     };
     view! {
@@ -72,9 +79,7 @@ pub fn LoadsTab() -> impl IntoView {
                 <button data-testid="add-custom" on:click=move |_| state.add_custom(&target.get_untracked())>"+ Custom appliance"</button>
                 <p class="note">"Library ratings are typical values (common practice); use the nameplate when you have it."</p>
             </fieldset>
-            <For each=groups key=move |(g, rows)| (state.structure.get_untracked(), g.clone(), rows.len()) let:group>
-                <LoadGroup name=group.0 rows=group.1 />
-            </For>
+            <KeyedList rows=Box::new(groups) />
         </div>
     }
 }

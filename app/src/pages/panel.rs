@@ -1,7 +1,7 @@
 //! The panel: a schedule by breaker position (editable with a thumb), balancing before and after
 //! side by side, and the moves as a checklist that can be applied and undone.
 
-use crate::components::{NumberField, TextField};
+use crate::components::{Keyed, KeyedList, NumberField, TextField};
 use crate::edit::{self, panel as pe, panel::CircuitEdit};
 use crate::format;
 use crate::state::AppState;
@@ -49,16 +49,23 @@ pub fn PanelTab() -> impl IntoView {
 #[component]
 fn Schedule() -> impl IntoView {
     let state = expect_context::<AppState>();
-    let rows = move || state.schedule.get().unwrap_or_default();
+    let rows = move || {
+        let rows = state.schedule.get().unwrap_or_default();
+        rows.into_iter()
+            .map(|row| {
+                // Every field of the line, so a line is rebuilt whenever anything on it changes.
+                let key = serde_json::to_string(&row).unwrap_or_default();
+                Keyed::new(key, move || view! { <ScheduleLine row=row /> })
+            })
+            .collect::<Vec<Keyed>>()
+    };
     view! {
         <h3>"Schedule"</h3>
         <Show when=move || state.schedule.with(|s| s.is_none())>
             <super::results::ProblemList />
         </Show>
         <ul class="schedule" data-testid="schedule">
-            <For each=rows key=|r| format!("{r:?}") let:row>
-                <ScheduleLine row=row />
-            </For>
+            <KeyedList rows=Box::new(rows) />
         </ul>
     }
 }
@@ -80,7 +87,7 @@ fn ScheduleLine(row: Row) -> impl IntoView {
                 })
         })
     };
-    let chip = format!("chip chip-{}", row.leg.to_lowercase());
+    let chip = format!("chip chip-{}", row.leg.to_ascii_lowercase());
     let mut tags = Vec::new();
     if let Some(m) = &row.multiwire {
         tags.push(format!("shared neutral {m}"));

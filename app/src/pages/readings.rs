@@ -1,7 +1,7 @@
 //! The job's meter readings: dated sets (the first test, a re-test after a repair), each with its
 //! diagnosis from the engine, and the latest compared with the first.
 
-use crate::components::{CautionList, NumberField, SelectField, TextField};
+use crate::components::{CautionList, Keyed, KeyedList, NumberField, SelectField, TextField};
 use crate::edit::readings::{self as rd, ReadingEdit};
 use crate::state::{taken_now, AppState};
 use leptos::prelude::*;
@@ -12,7 +12,15 @@ pub fn ReadingsTab() -> impl IntoView {
     let state = expect_context::<AppState>();
     let sets = move || {
         state.structure.track();
-        (0..state.draft.with_untracked(|d| rd::sets(d).len())).collect::<Vec<usize>>()
+        let structure = state.structure.get_untracked();
+        (0..state.draft.with_untracked(|d| rd::sets(d).len()))
+            .map(|s| {
+                Keyed::new(
+                    format!("{structure}/{s}"),
+                    move || view! { <ReadingSet set=s /> },
+                )
+            })
+            .collect::<Vec<Keyed>>()
     };
     let comparison = move || {
         state
@@ -34,9 +42,7 @@ pub fn ReadingsTab() -> impl IntoView {
             <Show when=move || state.diagnosis.with(|h| h.is_none())>
                 <p class="problems" data-testid="readings-job-problems">"Fix the job's fields first (see the other tabs); the readings are kept meanwhile."</p>
             </Show>
-            <For each=sets key=move |s| (state.structure.get_untracked(), *s) let:s>
-                <ReadingSet set=s />
-            </For>
+            <KeyedList rows=Box::new(sets) />
             {comparison}
             <button data-testid="add-reading-set" on:click=move |_| {
                 let first = state.draft.with_untracked(|d| rd::sets(d).is_empty());
@@ -91,7 +97,7 @@ fn set_result(o: &SetOutcome) -> AnyView {
             let code = d.verdict.code();
             view! {
                 <div class=format!("verdict verdict-{code}") data-testid="diagnosis" data-verdict=code>
-                    <p class="big-figure">{d.verdict.word().to_uppercase()}</p>
+                    <p class="big-figure">{d.verdict.word().to_ascii_uppercase()}</p>
                     <p>"Neutral " <strong data-testid="neutral-ohms-result">{format!("{:.3} Ω", d.neutral_ohms)}</strong>
                         {format!(" ± {:.3} Ω", d.neutral_ohms_uncertainty)}
                         " · each hot " {format!("{:.3} Ω ± {:.3} Ω", d.hot_ohms, d.hot_ohms_uncertainty)}</p>
