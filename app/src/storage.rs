@@ -18,7 +18,7 @@
 //! Every failure is a [`StorageError`] returned to the caller; nothing here panics. When local
 //! storage is missing (private mode, blocked) the app keeps computing and says so.
 
-use gloo_storage::{LocalStorage, Storage};
+use serde::de::DeserializeOwned;
 use serde::{Deserialize, Serialize};
 use tapline_core::job::{JobFile, Raw, JOB_VERSION};
 
@@ -111,6 +111,37 @@ fn raw() -> Result<web_sys::Storage, StorageError> {
         .ok_or(StorageError::Unavailable)
 }
 
+/// `text` read as a `T` through a JSON value, as the engine reads a job file: every stored type
+/// then shares the one reader of JSON text the module already carries, instead of each compiling
+/// a reader of its own.
+fn read<T: DeserializeOwned>(text: &str) -> Result<T, String> {
+    let value: serde_json::Value = serde_json::from_str(text).map_err(|e| e.to_string())?;
+    serde_json::from_value(value).map_err(|e| e.to_string())
+}
+
+/// The item under `key` read as a `T`; `None` when there is none or it cannot be read.
+fn get<T: DeserializeOwned>(key: &str) -> Option<T> {
+    let text = raw().ok()?.get_item(key).ok().flatten()?;
+    read(&text).ok()
+}
+
+/// Writes `item` as JSON under `key`.
+///
+/// # Errors
+/// [`StorageError::Unavailable`], or [`StorageError::WriteRefused`] with the browser's name for
+/// the refusal (`QuotaExceededError` when storage is full).
+fn set<T: Serialize>(key: &str, item: &T) -> Result<(), StorageError> {
+    let s = raw()?;
+    let text =
+        serde_json::to_string(item).map_err(|e| StorageError::WriteRefused(e.to_string()))?;
+    s.set_item(key, &text).map_err(|e| {
+        let name = js_sys::Reflect::get(&e, &"name".into())
+            .ok()
+            .and_then(|n| n.as_string());
+        StorageError::WriteRefused(name.unwrap_or_else(|| "no reason given".to_string()))
+    })
+}
+
 /// True when local storage can be used.
 pub fn available() -> bool {
     raw().is_ok()
@@ -140,7 +171,7 @@ pub fn load_jobs() -> (Vec<(String, StoredJob)>, Vec<StorageError>) {
     for key in keys {
         let id = key.trim_start_matches(JOB_PREFIX).to_string();
         let text = s.get_item(&key).ok().flatten().unwrap_or_default();
-        let parsed: Result<StoredJob, String> = serde_json::from_str::<StoredJob>(&text)
+        let parsed: Result<StoredJob, String> = read::<StoredJob>(&text)
             .map_err(|e| format!("not a readable job ({e})"))
             .and_then(|stored| match &stored.job.version {
                 Raw::Given(v) if *v > JOB_VERSION => Err(format!(
@@ -175,12 +206,10 @@ pub fn load_job(id: &str) -> Result<Option<StoredJob>, StorageError> {
     let Some(text) = raw()?.get_item(&key).ok().flatten() else {
         return Ok(None);
     };
-    serde_json::from_str(&text)
-        .map(Some)
-        .map_err(|e| StorageError::SetAside {
-            key,
-            reason: format!("not a readable job ({e})"),
-        })
+    read(&text).map(Some).map_err(|e| StorageError::SetAside {
+        key,
+        reason: format!("not a readable job ({e})"),
+    })
 }
 
 /// True for a storage key that holds a saved job (for the storage events other tabs raise).
@@ -190,9 +219,7 @@ pub fn is_job_key(key: &str) -> bool {
 
 /// Saves one job under its id.
 pub fn save_job(id: &str, stored: &StoredJob) -> Result<(), StorageError> {
-    raw()?;
-    LocalStorage::set(format!("{JOB_PREFIX}{id}"), stored)
-        .map_err(|e| StorageError::WriteRefused(e.to_string()))
+    set(&format!("{JOB_PREFIX}{id}"), stored)
 }
 
 /// Deletes one job and its draft.
@@ -205,16 +232,13 @@ pub fn delete_job(id: &str) -> Result<(), StorageError> {
 
 /// Keeps the draft of job `id` as typed, valid or not.
 pub fn save_draft(id: &str, draft: &JobFile) -> Result<(), StorageError> {
-    raw()?;
-    LocalStorage::set(format!("{DRAFT_PREFIX}{id}"), draft)
-        .map_err(|e| StorageError::WriteRefused(e.to_string()))
+    set(&format!("{DRAFT_PREFIX}{id}"), draft)
 }
 
 /// The draft of job `id`, when one was kept (an unreadable draft counts as none: the saved job
 /// is still there).
 pub fn load_draft(id: &str) -> Option<JobFile> {
-    raw().ok()?;
-    LocalStorage::get(format!("{DRAFT_PREFIX}{id}")).ok()
+    get(&format!("{DRAFT_PREFIX}{id}"))
 }
 
 /// Forgets the draft of job `id` (its valid version is saved).
@@ -226,27 +250,22 @@ pub fn clear_draft(id: &str) {
 
 /// Reads the settings (defaults when absent or unreadable).
 pub fn load_settings() -> Settings {
-    if raw().is_err() {
-        return Settings::default();
-    }
-    LocalStorage::get(SETTINGS_KEY).unwrap_or_default()
+    get(SETTINGS_KEY).unwrap_or_default()
 }
 
 /// Saves the settings.
 pub fn save_settings(settings: &Settings) -> Result<(), StorageError> {
-    raw()?;
-    LocalStorage::set(SETTINGS_KEY, settings).map_err(|e| StorageError::WriteRefused(e.to_string()))
+    set(SETTINGS_KEY, settings)
 }
 
 /// True when the demo job has already been offered once.
 pub fn seeded() -> bool {
-    raw().is_ok() && LocalStorage::get::<bool>(SEEDED_KEY).unwrap_or(false)
+    get::<bool>(SEEDED_KEY).unwrap_or(false)
 }
 
 /// Records that the demo job has been offered.
 pub fn mark_seeded() -> Result<(), StorageError> {
-    raw()?;
-    LocalStorage::set(SEEDED_KEY, true).map_err(|e| StorageError::WriteRefused(e.to_string()))
+    set(SEEDED_KEY, &true)
 }
 
 #[cfg(test)]
