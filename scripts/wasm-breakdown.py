@@ -13,7 +13,13 @@ functions.
 """
 import collections
 import re
+import subprocess
 import sys
+
+
+def brotli(b):
+    """The size of b compressed as the size check does (brotli -q 11)."""
+    return len(subprocess.run(["brotli", "-q", "11", "-c"], input=b, capture_output=True, check=True).stdout)
 
 
 def leb(b, i):
@@ -29,10 +35,11 @@ def leb(b, i):
 
 
 def walk(data):
-    """Returns the number of imported functions, the body sizes and the function names."""
+    """Returns the number of imported functions, the function bodies, the function names and the
+    data segments' bytes."""
     i = 8
     imported = 0
-    bodies, names = [], {}
+    bodies, names, constants = [], {}, b""
     while i < len(data):
         sid = data[i]
         i += 1
@@ -68,8 +75,10 @@ def walk(data):
             n, j = leb(data, i)
             for _ in range(n):
                 l, k = leb(data, j)
-                bodies.append(l + (k - j))
+                bodies.append(data[j : k + l])
                 j = k + l
+        elif sid == 11:  # data
+            constants = data[i:end]
         elif sid == 0:  # custom: only "name" matters here
             l, j = leb(data, i)
             if data[j : j + l] == b"name":
@@ -87,7 +96,7 @@ def walk(data):
                             k += l2
                     j += ssize
         i = end
-    return imported, bodies, names
+    return imported, bodies, names, constants
 
 
 CRATE = re.compile(r"([a-z_][a-z0-9_]*)(\[[0-9a-f]+\])?::")
@@ -108,21 +117,27 @@ def crate_of(name):
 def main():
     data = open(sys.argv[1], "rb").read()
     top = int(sys.argv[2]) if len(sys.argv) > 2 else 40
-    imported, bodies, names = walk(data)
+    imported, bodies, names, constants = walk(data)
     if not names:
         sys.exit("wasm-breakdown: the module has no name section; build it with scripts/wasm-breakdown.sh")
     size, count = collections.Counter(), collections.Counter()
+    code = collections.defaultdict(list)
     rows = []
-    for k, s in enumerate(bodies):
+    for k, body in enumerate(bodies):
         n = names.get(k + imported, "?")
         c = crate_of(n)
-        size[c] += s
+        size[c] += len(body)
         count[c] += 1
-        rows.append((s, n))
-    print(f"{'crate':24s} {'bytes':>9s} {'functions':>9s}")
+        code[c].append(body)
+        rows.append((len(body), n))
+    # Brotli finds repeats within a crate's code (the copies of one generic function), so the
+    # compressed column says what each crate costs a download better than the raw one. Each crate
+    # is compressed on its own, so the column sums to more than the whole module compresses to.
+    print(f"{'crate':24s} {'bytes':>9s} {'brotli':>9s} {'functions':>9s}")
     for c, s in size.most_common():
-        print(f"{c:24s} {s:9d} {count[c]:9d}")
-    print(f"{'TOTAL code':24s} {sum(bodies):9d} {len(bodies):9d}")
+        print(f"{c:24s} {s:9d} {brotli(b''.join(code[c])):9d} {count[c]:9d}")
+    print(f"{'TOTAL code':24s} {sum(size.values()):9d} {brotli(b''.join(bodies)):9d} {len(bodies):9d}")
+    print(f"{'constant data':24s} {len(constants):9d} {brotli(constants):9d}")
     print()
     for s, n in sorted(rows, reverse=True)[:top]:
         print(f"{s:7d} {n[:160]}")
