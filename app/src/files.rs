@@ -31,11 +31,19 @@ pub fn download(filename: &str, text: &str) -> Result<(), String> {
 }
 
 /// A file name for a job: its name with anything unusual replaced, and `.json`.
+///
+/// Kept: ASCII letters and digits, `-`, and every character outside ASCII that is neither a
+/// space nor a control character (the letters of any script; every file system takes them).
+/// Replaced: ASCII punctuation and spaces, which file systems and shells treat specially. Testing
+/// for "a letter of any script" would bring the standard library's Unicode tables into the module.
 pub fn file_name(job_name: &str) -> String {
     let stem: String = job_name
         .chars()
         .map(|c| {
-            if c.is_alphanumeric() || c == '-' {
+            let kept = c.is_ascii_alphanumeric()
+                || c == '-'
+                || !(c.is_ascii() || c.is_whitespace() || c.is_control());
+            if kept {
                 c
             } else {
                 '-'
@@ -73,5 +81,9 @@ mod tests {
             "27-Larkspur-Row--demo.json"
         );
         assert_eq!(file_name("///"), "job.json");
+        assert_eq!(
+            file_name("Müller: Ærø\u{3000}Tårn"),
+            "Müller--Ærø-Tårn.json"
+        );
     }
 }
