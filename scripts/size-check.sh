@@ -8,8 +8,8 @@ cd "$(dirname "$0")/.."
 # harmonics, the balancer, the diagnosis, the panel schedule, reading sets, sizing runs, motor
 # starts, planned additions, addresses for every screen, the homeowner view, the solver's reuse
 # between steps), then lowered to 375 KB when Leptos's erase_components and the one shared sort
-# took the app from 425 KB to 368 KB, and to 360 KB when one keyed list for every list, case
-# folding without the Unicode tables and one storage reader took it to 349 KB: the budget keeps
+# took the app from 425 KB to 368 KB, and to 360 KB when one keyed list for the lists that keep row
+# state, case folding without the Unicode tables and one storage reader took it to 349 KB: the budget keeps
 # what was won and leaves room for one round of features. The cut towards 180 KB is still to do:
 # the breakdown in DEVELOPERS.md shows the bytes spread over view code, the engine and serde
 # rather than one dependency.
