@@ -367,6 +367,8 @@ struct Workspace {
     /// The node voltages of the last solve.
     v: Vec<Option<Complex64>>,
     table: LoadTable,
+    /// The grouping of the loads for the states last iterated.
+    grouping: Option<Grouping>,
 }
 
 impl Workspace {
@@ -387,6 +389,7 @@ impl Workspace {
             stack: Vec::with_capacity(n),
             v: vec![None; n],
             table: LoadTable::new(net),
+            grouping: None,
         })
     }
 }
@@ -939,20 +942,84 @@ fn iterate(
     ws: &mut Workspace,
 ) -> Result<(Vec<Option<Complex64>>, usize), Unsettled> {
     let tol = TOLERANCE * net.system().volts_to_neutral();
+    let nonlinear = ws.table.watched.iter().any(|w| *w);
+    // The groups depend only on the load states, which a sweep's points and most passes share.
+    let mut grouping = match ws.grouping.take() {
+        Some(g) if g.states == states => g,
+        _ => Grouping::new(&ws.table, states),
+    };
+    let out = iterate_grouped(y, ws, &mut grouping, tol, nonlinear);
+    ws.grouping = Some(grouping);
+    out
+}
+
+/// The loads of one set of states sorted for [`iterate`]: its [`Group`]s (reset at each use), the
+/// list of their members with each one's coefficient, which loads vary, and the watched loads held
+/// constant.
+struct Grouping {
+    states: Vec<State>,
+    groups: Vec<Group>,
+    members: Vec<(usize, Complex64)>,
+    varies: Vec<bool>,
+    steady: Vec<(usize, Option<Complex64>)>,
+    /// Where each group lands in the reduced equations of the pass being solved.
+    landings: Vec<Landing>,
+}
+
+impl Grouping {
+    fn new(table: &LoadTable, states: &[State]) -> Grouping {
+        let (mut groups, members) = groups(table, states);
+        let mut varies = vec![false; states.len()];
+        for (k, _) in &members {
+            varies[*k] = true;
+        }
+        for g in &mut groups {
+            for (_, coefficient) in &members[g.members.clone()] {
+                g.coefficients += coefficient;
+            }
+        }
+        // Watched loads held constant in this pass still count towards convergence.
+        let steady = (0..states.len())
+            .filter(|&k| table.watched[k] && !varies[k])
+            .map(|k| (k, None))
+            .collect();
+        Grouping {
+            states: states.to_vec(),
+            groups,
+            members,
+            varies,
+            steady,
+            landings: Vec::new(),
+        }
+    }
+}
+
+/// [`iterate`] with the loads grouped.
+fn iterate_grouped(
+    y: &mut [Complex64],
+    ws: &mut Workspace,
+    grouping: &mut Grouping,
+    tol: f64,
+    nonlinear: bool,
+) -> Result<(Vec<Option<Complex64>>, usize), Unsettled> {
     let n = ws.n;
     let mut last_change = f64::INFINITY;
     let mut step: f64 = 1.0;
-    let nonlinear = ws.table.watched.iter().any(|w| *w);
-    let (mut groups, members) = groups(&ws.table, states);
-    let mut varies = vec![false; y.len()];
-    for (k, _) in &members {
-        varies[*k] = true;
+    let Grouping {
+        groups,
+        members,
+        varies,
+        steady,
+        landings,
+        ..
+    } = grouping;
+    let members = &*members;
+    for g in groups.iter_mut() {
+        (g.y, g.y_start, g.kept, g.taken, g.last_vt) = (ZERO, ZERO, 1.0, 0.0, None);
     }
-    // Watched loads held constant in this pass still count towards convergence.
-    let mut steady: Vec<(usize, Option<Complex64>)> = (0..y.len())
-        .filter(|&k| ws.table.watched[k] && !varies[k])
-        .map(|k| (k, None))
-        .collect();
+    for (_, last) in steady.iter_mut() {
+        *last = None;
+    }
     ws.pass.copy_from(&ws.base.eq);
     for k in 0..y.len() {
         if ws.table.on[k] && !varies[k] {
@@ -965,10 +1032,9 @@ fn iterate(
     // exactly zero), so it is found once, and each step restamps only the varying loads into the
     // pass's equations reduced to the unknown nodes.
     ws.eq.copy_from(&ws.pass);
-    for g in &mut groups {
-        for (k, coefficient) in &members[g.members.clone()] {
+    for g in groups.iter_mut() {
+        for (k, _) in &members[g.members.clone()] {
             g.y_start += y[*k];
-            g.coefficients += coefficient;
         }
         ws.eq.admit(n, g.a, g.b, with_branch(g.y_start, g.branch));
     }
@@ -982,17 +1048,18 @@ fn iterate(
     };
     structure(ws);
     reduce(ws, Equations::Pass);
-    let landings: Vec<Landing> = groups.iter().map(|g| landing(ws, g.a, g.b)).collect();
+    landings.clear();
+    landings.extend(groups.iter().map(|g| landing(ws, g.a, g.b)));
     for iteration in 1..=MAX_ITERATIONS {
         start_reduced(ws);
-        for (g, at) in groups.iter_mut().zip(&landings) {
+        for (g, at) in groups.iter_mut().zip(landings.iter()) {
             g.y = g.y_start * g.kept + g.coefficients * g.taken;
             admit_reduced(ws, at, with_branch(g.y, g.branch));
         }
         solve_reduced(ws).map_err(|_| Unsettled::Singular)?;
         let v = &ws.v;
         if !nonlinear {
-            write_out(&groups, y);
+            write_out(groups, y);
             return Ok((v.clone(), iteration));
         }
         // Work in squared magnitudes: this loop is the engine's hot path and hypot is slow.
@@ -1004,12 +1071,12 @@ fn iterate(
             };
             *last = Some(vt);
         };
-        for g in &mut groups {
+        for g in groups.iter_mut() {
             if let Some(vp) = pair(v, g.a, g.b) {
                 watch(&mut g.last_vt, at_terminals(vp, g.branch, g.y));
             }
         }
-        for (k, last) in &mut steady {
+        for (k, last) in steady.iter_mut() {
             let (a, b) = ws.table.ends[*k];
             if let Some(vp) = pair(v, a, b) {
                 watch(last, at_terminals(vp, ws.table.branch[*k], y[*k]));
@@ -1019,10 +1086,10 @@ fn iterate(
         // Return before updating the admittances, so the voltages handed back are exactly the
         // solution for the admittances handed back, and every current computed from them balances.
         if change <= tol {
-            write_out(&groups, y);
+            write_out(groups, y);
             return Ok((v.clone(), iteration));
         }
-        for g in &mut groups {
+        for g in groups.iter_mut() {
             if let Some(vt) = g.last_vt {
                 // hypot is slow and this is the hot path; the squares stay far from overflow.
                 let factor = g.shape.factor(vt.norm_sqr().sqrt());
@@ -1035,14 +1102,14 @@ fn iterate(
         }
         last_change = change;
     }
-    write_out(&groups, y);
+    write_out(groups, y);
     let mut last_vt: Vec<Option<f64>> = vec![None; y.len()];
-    for g in &groups {
+    for g in groups.iter() {
         for (k, _) in &members[g.members.clone()] {
             last_vt[*k] = g.last_vt.map(|v| v.norm());
         }
     }
-    for (k, last) in &steady {
+    for (k, last) in steady.iter() {
         last_vt[*k] = last.map(|v| v.norm());
     }
     Err(Unsettled::Collapse {
@@ -1202,27 +1269,47 @@ fn solve_harmonics(
     if orders.is_empty() {
         return Ok(());
     }
-    let mut each: Vec<Harmonic> = y
-        .iter()
-        .zip(&sol.loads)
-        .enumerate()
-        .map(|(k, (yk, r))| {
-            if is_source(k) {
-                // The unit phasor of the source's terminal voltage (angle zero when it has none):
-                // at order h the source sits at h times that angle, which is the unit phasor's
-                // h-th power, a few complex products instead of an arctangent and a sine and
-                // cosine per order (the power drifts from unit length by about h·1e-16, far
-                // below anything reported).
-                let unit = match r.terminal_v.map(|v| (v, magnitude(v))) {
-                    Some((v, m)) if m > 0.0 => Complex64::new(v.re / m, v.im / m),
-                    _ => Complex64::new(1.0, 0.0),
-                };
-                Harmonic::source(r.current.norm(), unit)
-            } else {
-                Harmonic::passive(inv(*yk))
-            }
-        })
-        .collect();
+    // Loads between the same two nodes (as placed) see one voltage, so each order stamps their
+    // admittances and sources as one sum and takes their current to the legs once: a house of
+    // forty loads sits between three pairs of nodes. Each load's own current is still formed,
+    // for its harmonic rms.
+    let mut between: Vec<Between> = Vec::new();
+    let mut each: Vec<Harmonic> = Vec::with_capacity(y.len());
+    for (k, (yk, r)) in y.iter().zip(&sol.loads).enumerate() {
+        let p = &net.loads()[k];
+        let at = if p.load.is_on() {
+            let found = between.iter().position(|s| s.a == p.a && s.b == p.b);
+            found.unwrap_or_else(|| {
+                let (ra, rb) = ws.table.ends[k];
+                between.push(Between {
+                    a: p.a,
+                    b: p.b,
+                    ra,
+                    rb,
+                    y: ZERO,
+                    injected: ZERO,
+                    vp: None,
+                });
+                between.len() - 1
+            })
+        } else {
+            NOWHERE
+        };
+        each.push(if is_source(k) {
+            // The unit phasor of the source's terminal voltage (angle zero when it has none): at
+            // order h the source sits at h times that angle, which is the unit phasor's h-th
+            // power, a few complex products instead of an arctangent and a sine and cosine per
+            // order (the power drifts from unit length by about h·1e-16, far below anything
+            // reported).
+            let unit = match r.terminal_v.map(|v| (v, magnitude(v))) {
+                Some((v, m)) if m > 0.0 => Complex64::new(v.re / m, v.im / m),
+                _ => Complex64::new(1.0, 0.0),
+            };
+            Harmonic::source(at, r.current.norm(), unit)
+        } else {
+            Harmonic::passive(at, inv(*yk))
+        });
+    }
     let n = ws.n;
     sol.harmonics.reserve_exact(orders.len());
     for h in orders {
@@ -1231,11 +1318,14 @@ fn solve_harmonics(
         }
         ws.eq.copy_from(&ws.base.eq);
         let hf = f64::from(h);
+        for s in &mut between {
+            s.y = ZERO;
+            s.injected = ZERO;
+        }
         for (k, (p, e)) in net.loads().iter().zip(&mut each).enumerate() {
-            if !p.load.is_on() {
+            if e.at == NOWHERE {
                 continue;
             }
-            let (a, b) = ws.table.ends[k];
             let zb = at_harmonic(p.branch, h);
             match e.source {
                 Some((i1, unit)) => {
@@ -1254,28 +1344,34 @@ fn solve_harmonics(
                         let through = Complex64::new(1.0, 0.0) + zb * y_norton;
                         (div(y_norton, through), div(i_src, through))
                     };
-                    if e.injected != ZERO {
-                        ws.eq.inject(a, b, e.injected);
-                    }
+                    between[e.at].injected += e.injected;
                 }
                 None => e.y = inv(at_harmonic(e.z1, h) + zb),
             }
-            ws.eq.admit(n, a, b, e.y);
+            between[e.at].y += e.y;
+        }
+        for s in &between {
+            ws.eq.admit(n, s.ra, s.rb, s.y);
+            if s.injected != ZERO {
+                ws.eq.inject(s.ra, s.rb, s.injected);
+            }
         }
         nodal(ws)?;
         let v = &ws.v;
         let mut legs = [ZERO; 3];
         let mut into_neutral = ZERO;
         let mut shared = vec![ZERO; net.shared().len()];
-        for (k, (p, e)) in net.loads().iter().zip(&mut each).enumerate() {
-            if !p.load.is_on() {
+        for s in &mut between {
+            s.vp = pair(v, s.ra, s.rb);
+            let i = s.vp.map(|vp| vp * s.y).unwrap_or(ZERO) + s.injected;
+            add_branch_current(&mut legs, &mut into_neutral, &mut shared, s.a, s.b, i);
+        }
+        for e in &mut each {
+            if e.at == NOWHERE {
                 continue;
             }
-            let (a, b) = ws.table.ends[k];
-            let through = pair(v, a, b).map(|vp| vp * e.y).unwrap_or(ZERO);
-            let i = through + e.injected;
-            e.sum_sq += i.norm_sqr();
-            add_branch_current(&mut legs, &mut into_neutral, &mut shared, p.a, p.b, i);
+            let through = between[e.at].vp.map(|vp| vp * e.y).unwrap_or(ZERO);
+            e.sum_sq += (through + e.injected).norm_sqr();
         }
         into_neutral += shared_into_neutral(net, &mut shared);
         let (neutral_current, earth_current) = split_return(net, h, v[NEUTRAL_INDEX], into_neutral);
@@ -1294,8 +1390,26 @@ fn solve_harmonics(
     Ok(())
 }
 
+/// The switched-on loads between one pair of nodes, in the harmonic solves of
+/// [`solve_harmonics`].
+struct Between {
+    /// The two nodes as placed (for the currents to the legs and neutrals) and their indices
+    /// (see [`ends`]).
+    a: Node,
+    b: Node,
+    ra: usize,
+    rb: usize,
+    /// At the order being solved: the sum of the loads' admittances and of their sources'
+    /// currents, and the voltage from `a` to `b` (`None` when a node floats).
+    y: Complex64,
+    injected: Complex64,
+    vp: Option<Complex64>,
+}
+
 /// One load in the harmonic solves of [`solve_harmonics`].
 struct Harmonic {
+    /// Its place in the list of [`Between`]s; [`NOWHERE`] when switched off.
+    at: usize,
     /// A source's fundamental current magnitude, amperes, and the unit phasor of its terminal
     /// voltage; `None` for a passive load.
     source: Option<(f64, Complex64)>,
@@ -1310,8 +1424,9 @@ struct Harmonic {
 }
 
 impl Harmonic {
-    fn source(i1: f64, unit: Complex64) -> Harmonic {
+    fn source(at: usize, i1: f64, unit: Complex64) -> Harmonic {
         Harmonic {
+            at,
             source: Some((i1, unit)),
             z1: ZERO,
             y: ZERO,
@@ -1320,8 +1435,9 @@ impl Harmonic {
         }
     }
 
-    fn passive(z1: Complex64) -> Harmonic {
+    fn passive(at: usize, z1: Complex64) -> Harmonic {
         Harmonic {
+            at,
             source: None,
             z1,
             y: ZERO,
