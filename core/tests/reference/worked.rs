@@ -360,3 +360,57 @@ fn lamp_power_exponent() {
     );
     close(r.loads[0].power_w, 100.0 * 0.9f64.powf(1.54), 1e-9);
 }
+
+/// Source: Kirchhoff's current law at the neutral bar, solved here by bisection as a second,
+/// simpler model of the same circuit (hand set-up, no engine code): a stiff 120/240 V source, a
+/// neutral loose at 300 Ω, and on each leg a switched-mode supply at unity power factor (constant
+/// power, I = P/V), a heater (I = P·V/V_r²) and a tungsten lamp (I = (P/V_r²)·(V/V_r)^−0.46·V, the
+/// exponent of [`lamp_power_exponent`], from memory). With L1 at +120 V, L2 at −120 V and the bar
+/// at V_n (all in phase, so real): I_L1(120 − V_n) − I_L2(120 + V_n) = V_n/300. Between −60 V and
+/// +60 V this has one root, where the bar's net current falls as V_n rises (a stable operating
+/// point; the other two roots, near ±100 V, are unstable). The legs' loads are nearly in series,
+/// the case where the engine's iteration converges slowest and its extrapolation does the most;
+/// it must land on this root within 1 mV.
+#[test]
+fn loose_neutral_with_constant_power_heaters_and_lamps_matches_kirchhoff_by_bisection() {
+    let r = 300.0;
+    // (supply, heater, lamp) watts on L1 and on L2.
+    let (l1, l2) = ((500.0, 1000.0, 100.0), (200.0, 1500.0, 60.0));
+    let leg = |(p, heat, lamp): (f64, f64, f64), v: f64| {
+        p / v + heat * v / (120.0 * 120.0) + lamp / (120.0 * 120.0) * (v / 120.0).powf(-0.46) * v
+    };
+    let f = |vn: f64| leg(l1, 120.0 - vn) - leg(l2, 120.0 + vn) - vn / r;
+    let (mut lo, mut hi) = (-60.0, 60.0);
+    assert!(
+        f(lo) > 0.0 && f(hi) < 0.0,
+        "the bracket holds the stable root"
+    );
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if f(mid) > 0.0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    let vn = 0.5 * (lo + hi);
+    let j = job(&format!(
+        r#"{{"system":{{"kind":"split-phase"}},"neutral":{{"state":"loose","ohms":{r}}},"loads":[
+        {{"connect":"L1-N","model":"electronic","watts":{},"power_factor":1}},
+        {{"connect":"L1-N","model":"resistive","watts":{}}},
+        {{"connect":"L1-N","model":"lamp","watts":{}}},
+        {{"connect":"L2-N","model":"electronic","watts":{},"power_factor":1}},
+        {{"connect":"L2-N","model":"resistive","watts":{}}},
+        {{"connect":"L2-N","model":"lamp","watts":{}}}]}}"#,
+        l1.0, l1.1, l1.2, l2.0, l2.1, l2.2
+    ));
+    let (_, sol) = solved(&j);
+    let ours = sol.node_v[tapline_core::network::NEUTRAL_INDEX].unwrap();
+    close(ours.re, vn, 1e-3);
+    close(ours.im, 0.0, 1e-3);
+    // Both supplies run inside their default input range (75 % to 115 % of 120 V).
+    assert!(120.0 - vn < 138.0 && 120.0 + vn > 90.0, "V_n = {vn}");
+    for r in &sol.loads {
+        assert_eq!(r.state, tapline_core::loads::State::Running);
+    }
+}
