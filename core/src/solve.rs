@@ -321,11 +321,43 @@ struct LoadTable {
     characteristic: Vec<Characteristic>,
     /// Its admittance running at rated voltage, where every solve starts.
     rated_y: Vec<Complex64>,
+    /// Which of `places` it sits on.
+    place: Vec<usize>,
+    /// The pairs of nodes that loads sit between, each once, in order of first use.
+    places: Vec<Place>,
+}
+
+/// Two nodes that loads sit between, as placed (for the currents to the legs, the neutral bar and
+/// the shared neutrals) and as indices (see [`ends`]). Loads on one place carry their currents to
+/// the same conductors, so their sum is carried once: a house of forty loads has three places.
+#[derive(Clone, Copy)]
+struct Place {
+    a: Node,
+    b: Node,
+    ra: usize,
+    rb: usize,
 }
 
 impl LoadTable {
     fn new(net: &Network) -> LoadTable {
         let loads = net.loads();
+        let mut places: Vec<Place> = Vec::new();
+        let place = loads
+            .iter()
+            .map(|p| {
+                let found = places.iter().position(|s| s.a == p.a && s.b == p.b);
+                found.unwrap_or_else(|| {
+                    let (ra, rb) = ends(net, p);
+                    places.push(Place {
+                        a: p.a,
+                        b: p.b,
+                        ra,
+                        rb,
+                    });
+                    places.len() - 1
+                })
+            })
+            .collect();
         LoadTable {
             ends: loads.iter().map(|p| ends(net, p)).collect(),
             branch: loads.iter().map(|p| p.branch).collect(),
@@ -342,6 +374,8 @@ impl LoadTable {
                         .admittance(p.load.rated_v(), State::Running)
                 })
                 .collect(),
+            place,
+            places,
         }
     }
 }
@@ -369,6 +403,7 @@ struct Workspace {
     table: LoadTable,
     /// The grouping of the loads for the states last iterated.
     grouping: Option<Grouping>,
+    scratch: Scratch,
 }
 
 impl Workspace {
@@ -390,6 +425,7 @@ impl Workspace {
             v: vec![None; n],
             table: LoadTable::new(net),
             grouping: None,
+            scratch: Scratch::default(),
         })
     }
 }
@@ -714,12 +750,42 @@ pub fn solve_fundamental_each<E: From<SolveError>>(
 
 /// [`solve_with`] in a workspace made for `net` whose base is at the fundamental.
 fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Solution, SolveError> {
+    let mut scratch = std::mem::take(&mut ws.scratch);
+    let out = solve_in_scratch(net, harmonics, ws, &mut scratch);
+    ws.scratch = scratch;
+    out
+}
+
+/// The per-load lists of [`solve_in`], kept in the workspace so that a sweep's points reuse them.
+#[derive(Default)]
+struct Scratch {
+    states: Vec<State>,
+    y: Vec<Complex64>,
+    tried: Vec<bool>,
+    vt: Vec<Option<f64>>,
+}
+
+/// [`solve_in`] with its lists.
+fn solve_in_scratch(
+    net: &Network,
+    harmonics: bool,
+    ws: &mut Workspace,
+    scratch: &mut Scratch,
+) -> Result<Solution, SolveError> {
     let n = net.loads().len();
-    let mut states = vec![State::Running; n];
+    let Scratch {
+        states,
+        y,
+        tried,
+        vt,
+    } = scratch;
+    states.clear();
+    states.resize(n, State::Running);
     // Every load starts running at its admittance at rated voltage, whatever was solved before:
     // a service can have more than one steady state (which motor stalls), and starting from a
     // neighbouring solution could land in another one than this state solved alone.
-    let mut y: Vec<Complex64> = ws.table.rated_y.clone();
+    y.clear();
+    y.extend_from_slice(&ws.table.rated_y);
     // A motor at the instant of starting is held at locked rotor whatever its voltage.
     if let Some(k) = net.starting {
         states[k] = State::Stalled;
@@ -731,11 +797,12 @@ fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Soluti
     // A restart is a trial: when it pulls any running load below its limit (or collapses the
     // supply), the states before it come back and that load stays down. Each load is tried once,
     // so the passes are bounded.
-    let mut tried = vec![false; n];
+    tried.clear();
+    tried.resize(n, false);
     let mut trial: Option<(Vec<State>, Vec<Complex64>)> = None;
     let mut total_iterations = 0;
     for _ in 0..4 * n + 4 {
-        let (v, iterations) = match iterate(net, &states, &mut y, ws) {
+        let (v, iterations) = match iterate(net, states, y, ws) {
             Ok(done) => done,
             Err(Unsettled::Singular) => return Err(SolveError::Singular),
             Err(Unsettled::Collapse {
@@ -744,13 +811,13 @@ fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Soluti
             }) => {
                 total_iterations += iterations;
                 if let Some((s, yy)) = trial.take() {
-                    (states, y) = (s, yy);
+                    (*states, *y) = (s, yy);
                     continue;
                 }
                 // A constant-power load the service cannot supply has no steady state: its voltage
                 // keeps sinking (voltage collapse). Physically the largest load whose demand cannot
                 // be met stalls or drops out first; solve again without it.
-                let Some(k) = gives_way(net, &states, &last_vt, true) else {
+                let Some(k) = gives_way(net, states, &last_vt, true) else {
                     return Err(SolveError::NoConvergence {
                         iterations: total_iterations,
                     });
@@ -763,16 +830,12 @@ fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Soluti
         total_iterations += iterations;
         // Only a load with a low limit (a motor, an electronic supply) gives way or restarts, so
         // only its terminal voltage is needed here.
-        let vt: Vec<Option<f64>> = net
-            .loads()
-            .iter()
-            .enumerate()
-            .map(|(k, p)| {
-                let (a, b) = ws.table.ends[k];
-                p.load.low_limit_v()?;
-                pair(&v, a, b).map(|vp| magnitude(at_terminals(vp, p.branch, y[k])))
-            })
-            .collect();
+        vt.clear();
+        vt.extend(net.loads().iter().enumerate().map(|(k, p)| {
+            let (a, b) = ws.table.ends[k];
+            p.load.low_limit_v()?;
+            pair(&v, a, b).map(|vp| magnitude(at_terminals(vp, p.branch, y[k])))
+        }));
         let below: Vec<usize> = net
             .loads()
             .iter()
@@ -789,7 +852,7 @@ fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Soluti
             .collect();
         if !below.is_empty() {
             if let Some((s, yy)) = trial.take() {
-                (states, y) = (s, yy);
+                (*states, *y) = (s, yy);
                 continue;
             }
             // Running loads below their limit give way all together (a set, so no order
@@ -831,7 +894,7 @@ fn solve_in(net: &Network, harmonics: bool, ws: &mut Workspace) -> Result<Soluti
                     .characteristic
                     .admittance(vt[k].unwrap_or(0.0), State::Running);
             }
-            None => return finish(net, &states, &y, v, total_iterations, harmonics, ws),
+            None => return finish(net, states, y, v, total_iterations, harmonics, ws),
         }
     }
     Err(SolveError::NoConvergence {
@@ -1247,6 +1310,7 @@ fn finish(
     let mut leg_current = [ZERO; 3];
     let mut into_neutral = ZERO;
     let mut shared_current = vec![ZERO; net.shared().len()];
+    let mut at_place = vec![ZERO; ws.table.places.len()];
     for (k, p) in net.loads().iter().enumerate() {
         let (a, b) = ws.table.ends[k];
         let panel_v = pair(&v, a, b);
@@ -1257,14 +1321,7 @@ fn finish(
             }
             (_, vp) => (vp, ZERO),
         };
-        add_branch_current(
-            &mut leg_current,
-            &mut into_neutral,
-            &mut shared_current,
-            p.a,
-            p.b,
-            current,
-        );
+        at_place[ws.table.place[k]] += current;
         loads.push(LoadResult {
             panel_v,
             terminal_v,
@@ -1276,6 +1333,16 @@ fn finish(
                 State::Running
             },
         });
+    }
+    for (place, i) in ws.table.places.iter().zip(at_place) {
+        add_branch_current(
+            &mut leg_current,
+            &mut into_neutral,
+            &mut shared_current,
+            place.a,
+            place.b,
+            i,
+        );
     }
     into_neutral += shared_into_neutral(net, &mut shared_current);
     let (neutral_current, earth_current) = split_return(net, 1, v[NEUTRAL_INDEX], into_neutral);
@@ -1335,29 +1402,24 @@ fn solve_harmonics(
     if orders.is_empty() {
         return Ok(());
     }
-    // Loads between the same two nodes (as placed) see one voltage, so each order stamps their
-    // admittances and sources as one sum and takes their current to the legs once: a house of
-    // forty loads sits between three pairs of nodes. Each load's own current is still formed,
+    // Loads on one place see one voltage, so each order stamps their admittances and sources as
+    // one sum and takes their current to the legs once. Each load's own current is still formed,
     // for its harmonic rms.
-    let mut between: Vec<Between> = Vec::new();
+    let mut between: Vec<Between> = ws
+        .table
+        .places
+        .iter()
+        .map(|&place| Between {
+            place,
+            y: ZERO,
+            injected: ZERO,
+            vp: None,
+        })
+        .collect();
     let mut each: Vec<Harmonic> = Vec::with_capacity(y.len());
     for (k, (yk, r)) in y.iter().zip(&sol.loads).enumerate() {
-        let p = &net.loads()[k];
-        let at = if p.load.is_on() {
-            let found = between.iter().position(|s| s.a == p.a && s.b == p.b);
-            found.unwrap_or_else(|| {
-                let (ra, rb) = ws.table.ends[k];
-                between.push(Between {
-                    a: p.a,
-                    b: p.b,
-                    ra,
-                    rb,
-                    y: ZERO,
-                    injected: ZERO,
-                    vp: None,
-                });
-                between.len() - 1
-            })
+        let at = if ws.table.on[k] {
+            ws.table.place[k]
         } else {
             NOWHERE
         };
@@ -1417,9 +1479,10 @@ fn solve_harmonics(
             between[e.at].y += e.y;
         }
         for s in &between {
-            ws.eq.admit(n, s.ra, s.rb, s.y);
+            let Place { ra, rb, .. } = s.place;
+            ws.eq.admit(n, ra, rb, s.y);
             if s.injected != ZERO {
-                ws.eq.inject(s.ra, s.rb, s.injected);
+                ws.eq.inject(ra, rb, s.injected);
             }
         }
         nodal(ws)?;
@@ -1428,9 +1491,10 @@ fn solve_harmonics(
         let mut into_neutral = ZERO;
         let mut shared = vec![ZERO; net.shared().len()];
         for s in &mut between {
-            s.vp = pair(v, s.ra, s.rb);
+            let Place { a, b, ra, rb } = s.place;
+            s.vp = pair(v, ra, rb);
             let i = s.vp.map(|vp| vp * s.y).unwrap_or(ZERO) + s.injected;
-            add_branch_current(&mut legs, &mut into_neutral, &mut shared, s.a, s.b, i);
+            add_branch_current(&mut legs, &mut into_neutral, &mut shared, a, b, i);
         }
         for e in &mut each {
             if e.at == NOWHERE {
@@ -1456,15 +1520,9 @@ fn solve_harmonics(
     Ok(())
 }
 
-/// The switched-on loads between one pair of nodes, in the harmonic solves of
-/// [`solve_harmonics`].
+/// The switched-on loads of one [`Place`], in the harmonic solves of [`solve_harmonics`].
 struct Between {
-    /// The two nodes as placed (for the currents to the legs and neutrals) and their indices
-    /// (see [`ends`]).
-    a: Node,
-    b: Node,
-    ra: usize,
-    rb: usize,
+    place: Place,
     /// At the order being solved: the sum of the loads' admittances and of their sources'
     /// currents, and the voltage from `a` to `b` (`None` when a node floats).
     y: Complex64,
@@ -1474,7 +1532,7 @@ struct Between {
 
 /// One load in the harmonic solves of [`solve_harmonics`].
 struct Harmonic {
-    /// Its place in the list of [`Between`]s; [`NOWHERE`] when switched off.
+    /// Its [`Place`] (an index of the load table's places); [`NOWHERE`] when switched off.
     at: usize,
     /// A source's fundamental current magnitude, amperes, and the unit phasor of its terminal
     /// voltage; `None` for a passive load.
