@@ -1002,7 +1002,8 @@ fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Compl
 /// damping s: y_k ← y_k + (c_k·f − y_k)·s = (1 − s)·y_k + s·f·c_k. By induction every member stays
 /// y_k = kept·y_k,start + taken·c_k with two numbers per group (kept ← (1 − s)·kept, taken ←
 /// (1 − s)·taken + s·f), and so does their sum; the members' own admittances are written out
-/// once, when the pass ends, instead of at every step.
+/// once, when the pass ends, instead of at every step. While the steps are undamped (kept = 0)
+/// and converge steadily, [`extrapolate`] moves `taken` ahead to where they were heading.
 fn iterate(
     net: &Network,
     states: &[State],
@@ -1214,10 +1215,9 @@ fn iterate_grouped(
 /// same way (cosine above 0.99) with 0.05 < ρ < 0.8, and when no factor moves by more than a
 /// quarter of its value: a converging iteration is only hastened to the point it was approaching
 /// (a jump eight times too long, tried once, moved a harmonic test's supply to another steady
-/// state). Near
-/// voltage collapse, where ρ nears one, or with the steps damped, the iteration is left as it
-/// was. Returns whether it extrapolated; each group's `moved` and `last_moved` hold Δ_k and
-/// Δ_{k−1} on entry.
+/// state). Near voltage collapse, where ρ nears one, or with the steps damped, the iteration is
+/// left as it was. Returns whether it extrapolated; each group's `moved` and `last_moved` hold
+/// Δ_k and Δ_{k−1} on entry.
 fn extrapolate(groups: &mut [Group]) -> bool {
     let (mut dot, mut last_sq, mut this_sq) = (0.0, 0.0, 0.0);
     for g in groups.iter() {

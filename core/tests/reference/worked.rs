@@ -368,9 +368,11 @@ fn lamp_power_exponent() {
 /// exponent of [`lamp_power_exponent`], from memory). With L1 at +120 V, L2 at −120 V and the bar
 /// at V_n (all in phase, so real): I_L1(120 − V_n) − I_L2(120 + V_n) = V_n/300. Between −60 V and
 /// +60 V this has one root, where the bar's net current falls as V_n rises (a stable operating
-/// point; the other two roots, near ±100 V, are unstable). The legs' loads are nearly in series,
-/// the case where the engine's iteration converges slowest and its extrapolation does the most;
-/// it must land on this root within 1 mV.
+/// point; the other two roots, at about −109 V and +98 V, are unstable). A separate calculation,
+/// set up from this description alone, found the same three roots and put the stable one at
+/// −9.825683 V (slope −0.1368 S). The legs' loads are nearly in series, the case where the
+/// engine's iteration converges slowest and its extrapolation does the most; it must land on this
+/// root within 1 mV.
 #[test]
 fn loose_neutral_with_constant_power_heaters_and_lamps_matches_kirchhoff_by_bisection() {
     let r = 300.0;
@@ -394,6 +396,7 @@ fn loose_neutral_with_constant_power_heaters_and_lamps_matches_kirchhoff_by_bise
         }
     }
     let vn = 0.5 * (lo + hi);
+    close(vn, -9.825683, 1e-5);
     let j = job(&format!(
         r#"{{"system":{{"kind":"split-phase"}},"neutral":{{"state":"loose","ohms":{r}}},"loads":[
         {{"connect":"L1-N","model":"electronic","watts":{},"power_factor":1}},
