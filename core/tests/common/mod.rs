@@ -26,6 +26,24 @@ pub fn close_rel(a: f64, b: f64, rel: f64) {
     );
 }
 
+/// The root of a hand model's equation `f` between `lo` and `hi`, by bisection (200 halvings, far
+/// past f64 resolution); `f(lo)` > 0 > `f(hi)` is required, so the bracket is checked.
+pub fn bisect(f: impl Fn(f64) -> f64, mut lo: f64, mut hi: f64) -> f64 {
+    assert!(
+        f(lo) > 0.0 && f(hi) < 0.0,
+        "the bracket holds one sign change"
+    );
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if f(mid) > 0.0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
 /// Parses and validates a job, panicking with the problems if it is invalid.
 pub fn job(text: &str) -> Job {
     match tapline_core::load_job(text) {

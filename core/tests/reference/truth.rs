@@ -3,7 +3,7 @@
 //! a published rule or table, or figures an independent checker computed its own way (marked
 //! "independent calculation": plain complex nodal analysis in a separate script).
 
-use crate::common::{close, report};
+use crate::common::{bisect, close, report};
 use serde_json::json;
 use tapline_core::classify::{classify, Context, Decider, Outcome};
 use tapline_core::loads::State;
@@ -100,16 +100,7 @@ fn harmonic_sources_have_an_impedance_and_are_solved_in_every_state() {
     };
     let (gn, g2) = (1.0 / 1000.0, 1.0 / 14.4);
     let f = |x: f64| p / (120.0 - x) - (x + 120.0) * g2 - x * gn;
-    let (mut lo, mut hi) = (-119.0, 0.0);
-    for _ in 0..200 {
-        let mid = 0.5 * (lo + hi);
-        if f(mid) > 0.0 {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-    }
-    let x: f64 = 0.5 * (lo + hi);
+    let x = bisect(f, -119.0, 0.0);
     let g1 = p / (120.0 - x).powi(2);
     let i3 = 0.8 * p / (120.0 - x);
     let vn3 = i3 / (g1 + g2 + gn);

@@ -1,6 +1,6 @@
 //! Worked examples from handbooks, textbooks and exam problems, solved by the engine.
 
-use crate::common::{close, close_rel, job, report, solved, watts_for_ohms};
+use crate::common::{bisect, close, close_rel, job, report, solved, watts_for_ohms};
 use tapline_core::conductors::drop::{
     approximate_drop, circular_mil_drop, exact_drop, smallest_awg_size, CircuitKind, SizingRequest,
 };
@@ -382,20 +382,8 @@ fn loose_neutral_with_constant_power_heaters_and_lamps_matches_kirchhoff_by_bise
         p / v + heat * v / (120.0 * 120.0) + lamp / (120.0 * 120.0) * (v / 120.0).powf(-0.46) * v
     };
     let f = |vn: f64| leg(l1, 120.0 - vn) - leg(l2, 120.0 + vn) - vn / r;
-    let (mut lo, mut hi) = (-60.0, 60.0);
-    assert!(
-        f(lo) > 0.0 && f(hi) < 0.0,
-        "the bracket holds the stable root"
-    );
-    for _ in 0..200 {
-        let mid = 0.5 * (lo + hi);
-        if f(mid) > 0.0 {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-    }
-    let vn = 0.5 * (lo + hi);
+    // One sign change between −60 V and +60 V: the stable root.
+    let vn = bisect(f, -60.0, 60.0);
     close(vn, -9.825683, 1e-5);
     let j = job(&format!(
         r#"{{"system":{{"kind":"split-phase"}},"neutral":{{"state":"loose","ohms":{r}}},"loads":[
