@@ -318,6 +318,8 @@ struct LoadTable {
     /// Switched on and of a model whose admittance depends on its voltage (lamp, motor,
     /// electronic supply): its terminal voltage is watched for convergence.
     watched: Vec<bool>,
+    /// Whether any load is watched (when none is, one step solves the network).
+    any_watched: bool,
     characteristic: Vec<Characteristic>,
     /// Its admittance running at rated voltage, where every solve starts.
     rated_y: Vec<Complex64>,
@@ -341,13 +343,14 @@ struct Place {
 impl LoadTable {
     fn new(net: &Network) -> LoadTable {
         let loads = net.loads();
+        let ends: Vec<(usize, usize)> = loads.iter().map(|p| ends(net, p)).collect();
         let mut places: Vec<Place> = Vec::new();
         let place = loads
             .iter()
-            .map(|p| {
+            .zip(&ends)
+            .map(|(p, &(ra, rb))| {
                 let found = places.iter().position(|s| s.a == p.a && s.b == p.b);
                 found.unwrap_or_else(|| {
-                    let (ra, rb) = ends(net, p);
                     places.push(Place {
                         a: p.a,
                         b: p.b,
@@ -358,14 +361,16 @@ impl LoadTable {
                 })
             })
             .collect();
+        let watched: Vec<bool> = loads
+            .iter()
+            .map(|p| p.load.is_on() && p.load.model().is_nonlinear())
+            .collect();
         LoadTable {
-            ends: loads.iter().map(|p| ends(net, p)).collect(),
+            ends,
             branch: loads.iter().map(|p| p.branch).collect(),
             on: loads.iter().map(|p| p.load.is_on()).collect(),
-            watched: loads
-                .iter()
-                .map(|p| p.load.is_on() && p.load.model().is_nonlinear())
-                .collect(),
+            any_watched: watched.iter().any(|w| *w),
+            watched,
             characteristic: loads.iter().map(|p| p.characteristic).collect(),
             rated_y: loads
                 .iter()
@@ -984,9 +989,10 @@ fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Compl
     }
     let mut members = vec![(0, ZERO); tagged.len()];
     for (g, k, c) in tagged {
-        let at = &mut out[g].members.end;
-        members[*at] = (k, c);
-        *at += 1;
+        let group = &mut out[g];
+        members[group.members.end] = (k, c);
+        group.members.end += 1;
+        group.coefficients += c;
     }
     (out, members)
 }
@@ -1011,7 +1017,7 @@ fn iterate(
     ws: &mut Workspace,
 ) -> Result<(Vec<Option<Complex64>>, usize), Unsettled> {
     let tol = TOLERANCE * net.system().volts_to_neutral();
-    let nonlinear = ws.table.watched.iter().any(|w| *w);
+    let nonlinear = ws.table.any_watched;
     // The groups depend only on the load states, which a sweep's points and most passes share.
     let mut grouping = match ws.grouping.take() {
         Some(g) if g.states == states => g,
@@ -1037,15 +1043,10 @@ struct Grouping {
 
 impl Grouping {
     fn new(table: &LoadTable, states: &[State]) -> Grouping {
-        let (mut groups, members) = groups(table, states);
+        let (groups, members) = groups(table, states);
         let mut varies = vec![false; states.len()];
         for (k, _) in &members {
             varies[*k] = true;
-        }
-        for g in &mut groups {
-            for (_, coefficient) in &members[g.members.clone()] {
-                g.coefficients += coefficient;
-            }
         }
         // Watched loads held constant in this pass still count towards convergence.
         let steady = (0..states.len())
