@@ -38,7 +38,6 @@
 //! A key the format does not define is kept verbatim (so the file round-trips) and refused by
 //! validation with the nearest known key (`loads[0].wats: unknown field (did you mean watts?)`).
 
-use serde::de::DeserializeOwned;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 use serde_json::Value;
 
@@ -90,283 +89,480 @@ impl<T: Serialize> Serialize for Raw<T> {
     }
 }
 
-impl<'de, T: DeserializeOwned> Deserialize<'de> for Raw<T> {
-    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
-        let value = Value::deserialize(d)?;
+impl<T: FromJson> Raw<T> {
+    /// Reads one field's value: `null` is absent, a value `T` reads is given, and any other value
+    /// is kept as it stood.
+    pub fn read(value: Value) -> Raw<T> {
         if value.is_null() {
-            return Ok(Raw::Absent);
+            Raw::Absent
+        } else if T::fits(&value) {
+            Raw::Given(T::take(value))
+        } else {
+            Raw::Invalid(value)
         }
-        Ok(match serde_json::from_value::<T>(value.clone()) {
-            Ok(v) => Raw::Given(v),
-            Err(_) => Raw::Invalid(value),
-        })
     }
 }
 
-/// The whole job file.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct JobFile {
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub version: Raw<u32>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub name: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub notes: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub system: Raw<SystemFile>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub transformer: Raw<TransformerFile>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub service: Raw<ServiceFile>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub neutral: Raw<NeutralFile>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub loads: Raw<Vec<Raw<LoadFile>>>,
-    /// Shared-neutral (multiwire) branch circuits that loads may name.
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub multiwire: Raw<Vec<Raw<MultiwireFile>>>,
-    /// Meter readings taken on site, one dated set per visit (the first test, the re-test after
-    /// a repair). They are kept as typed: the job's solve does not depend on them, and the
-    /// diagnosis names any reading it cannot use.
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub readings: Raw<Vec<Raw<ReadingSetFile>>>,
-    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+impl<'de, T: FromJson> Deserialize<'de> for Raw<T> {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        Ok(Raw::read(Value::deserialize(d)?))
+    }
 }
 
-/// One visit's meter readings, dated.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct ReadingSetFile {
-    /// When the set was taken, as the person or the phone's clock wrote it (`2026-12-02 09:40`).
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub taken: Raw<String>,
-    /// What the set was for ("first test", "after tightening the neutral lug").
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub note: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub meter: Raw<MeterFile>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub readings: Raw<Vec<Raw<ReadingFile>>>,
-    /// Keys this format does not define; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+/// A type a file's JSON value is read into, field by field, without failing.
+///
+/// The file's forms are read by hand rather than through serde's derived readers: those route a
+/// struct's unknown keys through a buffer of every value (serde's `flatten`) and read each field
+/// twice (as a JSON value, then as its type), which made the JSON reading the largest single
+/// function of the phone app. Reading here follows serde_json's own rules for each type, so a
+/// file reads as it did: an `f64` is any JSON number, a `u32` an integer from 0 to 4294967295 (not
+/// `3.0`), a pair a two-element array, a file struct any object.
+pub trait FromJson: Sized {
+    /// True when `value` reads as this type.
+    fn fits(value: &Value) -> bool;
+    /// Reads `value`, which [`FromJson::fits`].
+    fn take(value: Value) -> Self;
 }
 
-/// A shared-neutral (multiwire) branch circuit: its id and its neutral conductor.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct MultiwireFile {
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub id: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub material: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub size: Raw<Value>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub length_m: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub length_ft: Raw<f64>,
-    /// The NEC Table 310.16 temperature column, °C: 60, 75 or 90 (60 if absent).
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub column_c: Raw<f64>,
-    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+impl FromJson for f64 {
+    fn fits(value: &Value) -> bool {
+        value.is_number()
+    }
+    fn take(value: Value) -> f64 {
+        value.as_f64().unwrap_or(0.0)
+    }
 }
 
-/// `system`: what the utility delivers at the service.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct SystemFile {
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub kind: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub volts_to_neutral: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub frequency_hz: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub phases: Raw<u32>,
-    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+impl FromJson for u32 {
+    fn fits(value: &Value) -> bool {
+        value.as_u64().is_some_and(|n| u32::try_from(n).is_ok())
+    }
+    fn take(value: Value) -> u32 {
+        value
+            .as_u64()
+            .and_then(|n| u32::try_from(n).ok())
+            .unwrap_or(0)
+    }
 }
 
-/// `transformer`: the distribution transformer feeding the service.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct TransformerFile {
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub kva: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub primary_v: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub impedance_pct: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub x_over_r: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub tap_pct: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub supply_v: Raw<f64>,
-    /// `single-phase`, `delta-wye` or `wye-wye`.
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub connection: Raw<String>,
-    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+impl FromJson for bool {
+    fn fits(value: &Value) -> bool {
+        value.is_boolean()
+    }
+    fn take(value: Value) -> bool {
+        value.as_bool().unwrap_or(false)
+    }
 }
 
-/// `service`: the conductors from the transformer to the panel.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct ServiceFile {
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub hot: Raw<ConductorFile>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub neutral: Raw<ConductorFile>,
-    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+impl FromJson for String {
+    fn fits(value: &Value) -> bool {
+        value.is_string()
+    }
+    fn take(value: Value) -> String {
+        match value {
+            Value::String(s) => s,
+            _ => String::new(),
+        }
+    }
 }
 
-/// A conductor run: a table size and length, or an explicit whole-run impedance.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct ConductorFile {
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub material: Raw<String>,
-    /// A size such as `"12"`, `"4/0"`, `"250"`, `"250 kcmil"` or `"16 mm2"`; a bare number is read too.
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub size: Raw<Value>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub length_m: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub length_ft: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub sets: Raw<u32>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub conduit: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub temperature_c: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub r_ohm: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub x_ohm: Raw<f64>,
-    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+/// Any value but `null` (which [`Raw::read`] takes for absent).
+impl FromJson for Value {
+    fn fits(_: &Value) -> bool {
+        true
+    }
+    fn take(value: Value) -> Value {
+        value
+    }
 }
 
-/// `neutral`: the state of the service neutral.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct NeutralFile {
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub state: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub ohms: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub earth_return_ohms: Raw<f64>,
-    /// How the state was found on site, in words ("0.35 Ω measured 2026-12-01, neutral lug
-    /// warm"): the neutral in a job is the neutral as found, never a what-if.
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub found: Raw<String>,
-    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+/// A list: an array whose every element reads.
+impl<T: FromJson> FromJson for Vec<T> {
+    fn fits(value: &Value) -> bool {
+        value.as_array().is_some_and(|a| a.iter().all(T::fits))
+    }
+    fn take(value: Value) -> Vec<T> {
+        match value {
+            Value::Array(a) => a.into_iter().map(T::take).collect(),
+            _ => Vec::new(),
+        }
+    }
 }
 
-/// One appliance or load.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct LoadFile {
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub name: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub connect: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub model: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub watts: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub rated_v: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub power_factor: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub on: Raw<bool>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub branch: Raw<ConductorFile>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub input_min_v: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub input_max_v: Raw<f64>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub harmonics: Raw<Vec<(u32, f64)>>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub appliance: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub circuit: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub movable: Raw<bool>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub slot: Raw<u32>,
-    /// The id of the shared-neutral branch circuit this load is on.
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub multiwire: Raw<String>,
-    /// A motor's locked-rotor amperes at rated voltage.
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub locked_rotor_a: Raw<f64>,
-    /// A motor's NEC Table 430.7(B) code letter (with `hp`).
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub code_letter: Raw<String>,
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub hp: Raw<f64>,
-    /// A motor's locked-rotor current as a multiple of its running current.
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub locked_rotor_multiple: Raw<f64>,
-    /// A motor's power factor while starting (locked rotor).
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub start_pf: Raw<f64>,
-    /// True for an appliance planned but not installed yet: kept apart from the job as found,
-    /// added only in the plan's "after".
-    #[serde(skip_serializing_if = "Raw::is_absent")]
-    pub planned: Raw<bool>,
-    /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+/// A field of a list, which never fails to read: its wrong values are kept.
+impl<T: FromJson> FromJson for Raw<T> {
+    fn fits(_: &Value) -> bool {
+        true
+    }
+    fn take(value: Value) -> Raw<T> {
+        Raw::read(value)
+    }
 }
 
-/// The meters' resolution.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct MeterFile {
-    pub volts_resolution: Raw<f64>,
-    pub amps_resolution: Raw<f64>,
-    /// Keys this format does not define; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+/// A pair such as a harmonic's order and fraction: an array of exactly two elements.
+impl<A: FromJson, B: FromJson> FromJson for (A, B) {
+    fn fits(value: &Value) -> bool {
+        matches!(value.as_array().map(Vec::as_slice), Some([a, b]) if A::fits(a) && B::fits(b))
+    }
+    fn take(value: Value) -> (A, B) {
+        let mut items = match value {
+            Value::Array(a) => a.into_iter(),
+            _ => Vec::new().into_iter(),
+        };
+        let a = A::take(items.next().unwrap_or(Value::Null));
+        let b = B::take(items.next().unwrap_or(Value::Null));
+        (a, b)
+    }
 }
 
-/// One set of readings.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct ReadingFile {
-    pub label: Raw<String>,
-    /// `panel` (default) or `meter`: where the voltages were read.
-    pub at: Raw<String>,
-    pub l1_n_v: Raw<f64>,
-    pub l2_n_v: Raw<f64>,
-    pub l1_l2_v: Raw<f64>,
-    pub l1_a: Raw<f64>,
-    pub l2_a: Raw<f64>,
-    /// Each leg current's power factor (lagging), as a power-quality clamp shows; 1 if absent.
-    pub l1_pf: Raw<f64>,
-    pub l2_pf: Raw<f64>,
-    /// Keys this format does not define; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+/// Where a file struct keeps one key's value: a [`Raw`] field reads it as its type, and the
+/// struct's `unknown` keeps the key and its value verbatim.
+pub trait Slot {
+    fn put(&mut self, key: String, value: Value);
+}
+
+impl<T: FromJson> Slot for Raw<T> {
+    fn put(&mut self, _: String, value: Value) {
+        *self = Raw::read(value);
+    }
+}
+
+impl Slot for Unknown {
+    fn put(&mut self, key: String, value: Value) {
+        self.insert(key, value);
+    }
+}
+
+/// Declares a struct of a file's form (every field a [`Raw`] but `unknown`, the keys the form does
+/// not define) and its reading from a JSON object: each key that names a field goes to it, and
+/// every other key to `unknown`, kept verbatim (a key spelt `unknown` is itself unknown). The
+/// fields are listed once, in the struct, so the reader cannot miss one.
+macro_rules! file_form {
+    (
+        $(#[$meta:meta])*
+        pub struct $name:ident {
+            $($(#[$field_meta:meta])* pub $field:ident: $ty:ty,)*
+        }
+    ) => {
+        $(#[$meta])*
+        pub struct $name {
+            $($(#[$field_meta])* pub $field: $ty,)*
+        }
+
+        impl $crate::job::FromJson for $name {
+            fn fits(value: &serde_json::Value) -> bool {
+                value.is_object()
+            }
+            fn take(value: serde_json::Value) -> $name {
+                let mut out = $name::default();
+                if let serde_json::Value::Object(map) = value {
+                    for (key, value) in map {
+                        match key.as_str() {
+                            $(stringify!($field) => {
+                                $crate::job::Slot::put(&mut out.$field, key, value)
+                            })*
+                            _ => {
+                                out.unknown.insert(key, value);
+                            }
+                        }
+                    }
+                }
+                out
+            }
+        }
+
+        impl<'de> serde::Deserialize<'de> for $name {
+            fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<$name, D::Error> {
+                let value = <serde_json::Value as serde::Deserialize>::deserialize(d)?;
+                if value.is_object() {
+                    Ok(<$name as $crate::job::FromJson>::take(value))
+                } else {
+                    Err(<D::Error as serde::de::Error>::custom(concat!(
+                        stringify!($name),
+                        ": must be a JSON object"
+                    )))
+                }
+            }
+        }
+    };
+}
+pub(crate) use file_form;
+
+file_form! {
+    /// The whole job file.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct JobFile {
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub version: Raw<u32>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub name: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub notes: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub system: Raw<SystemFile>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub transformer: Raw<TransformerFile>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub service: Raw<ServiceFile>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub neutral: Raw<NeutralFile>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub loads: Raw<Vec<Raw<LoadFile>>>,
+        /// Shared-neutral (multiwire) branch circuits that loads may name.
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub multiwire: Raw<Vec<Raw<MultiwireFile>>>,
+        /// Meter readings taken on site, one dated set per visit (the first test, the re-test after
+        /// a repair). They are kept as typed: the job's solve does not depend on them, and the
+        /// diagnosis names any reading it cannot use.
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub readings: Raw<Vec<Raw<ReadingSetFile>>>,
+        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// One visit's meter readings, dated.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct ReadingSetFile {
+        /// When the set was taken, as the person or the phone's clock wrote it (`2026-12-02 09:40`).
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub taken: Raw<String>,
+        /// What the set was for ("first test", "after tightening the neutral lug").
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub note: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub meter: Raw<MeterFile>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub readings: Raw<Vec<Raw<ReadingFile>>>,
+        /// Keys this format does not define; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// A shared-neutral (multiwire) branch circuit: its id and its neutral conductor.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct MultiwireFile {
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub id: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub material: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub size: Raw<Value>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub length_m: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub length_ft: Raw<f64>,
+        /// The NEC Table 310.16 temperature column, °C: 60, 75 or 90 (60 if absent).
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub column_c: Raw<f64>,
+        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// `system`: what the utility delivers at the service.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct SystemFile {
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub kind: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub volts_to_neutral: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub frequency_hz: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub phases: Raw<u32>,
+        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// `transformer`: the distribution transformer feeding the service.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct TransformerFile {
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub kva: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub primary_v: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub impedance_pct: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub x_over_r: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub tap_pct: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub supply_v: Raw<f64>,
+        /// `single-phase`, `delta-wye` or `wye-wye`.
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub connection: Raw<String>,
+        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// `service`: the conductors from the transformer to the panel.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct ServiceFile {
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub hot: Raw<ConductorFile>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub neutral: Raw<ConductorFile>,
+        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// A conductor run: a table size and length, or an explicit whole-run impedance.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct ConductorFile {
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub material: Raw<String>,
+        /// A size such as `"12"`, `"4/0"`, `"250"`, `"250 kcmil"` or `"16 mm2"`; a bare number is read too.
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub size: Raw<Value>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub length_m: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub length_ft: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub sets: Raw<u32>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub conduit: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub temperature_c: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub r_ohm: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub x_ohm: Raw<f64>,
+        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// `neutral`: the state of the service neutral.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct NeutralFile {
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub state: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub ohms: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub earth_return_ohms: Raw<f64>,
+        /// How the state was found on site, in words ("0.35 Ω measured 2026-12-01, neutral lug
+        /// warm"): the neutral in a job is the neutral as found, never a what-if.
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub found: Raw<String>,
+        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// One appliance or load.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct LoadFile {
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub name: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub connect: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub model: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub watts: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub rated_v: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub power_factor: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub on: Raw<bool>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub branch: Raw<ConductorFile>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub input_min_v: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub input_max_v: Raw<f64>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub harmonics: Raw<Vec<(u32, f64)>>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub appliance: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub circuit: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub movable: Raw<bool>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub slot: Raw<u32>,
+        /// The id of the shared-neutral branch circuit this load is on.
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub multiwire: Raw<String>,
+        /// A motor's locked-rotor amperes at rated voltage.
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub locked_rotor_a: Raw<f64>,
+        /// A motor's NEC Table 430.7(B) code letter (with `hp`).
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub code_letter: Raw<String>,
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub hp: Raw<f64>,
+        /// A motor's locked-rotor current as a multiple of its running current.
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub locked_rotor_multiple: Raw<f64>,
+        /// A motor's power factor while starting (locked rotor).
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub start_pf: Raw<f64>,
+        /// True for an appliance planned but not installed yet: kept apart from the job as found,
+        /// added only in the plan's "after".
+        #[serde(skip_serializing_if = "Raw::is_absent")]
+        pub planned: Raw<bool>,
+        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// The meters' resolution.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct MeterFile {
+        pub volts_resolution: Raw<f64>,
+        pub amps_resolution: Raw<f64>,
+        /// Keys this format does not define; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
+}
+
+file_form! {
+    /// One set of readings.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct ReadingFile {
+        pub label: Raw<String>,
+        /// `panel` (default) or `meter`: where the voltages were read.
+        pub at: Raw<String>,
+        pub l1_n_v: Raw<f64>,
+        pub l2_n_v: Raw<f64>,
+        pub l1_l2_v: Raw<f64>,
+        pub l1_a: Raw<f64>,
+        pub l2_a: Raw<f64>,
+        /// Each leg current's power factor (lagging), as a power-quality clamp shows; 1 if absent.
+        pub l1_pf: Raw<f64>,
+        pub l2_pf: Raw<f64>,
+        /// Keys this format does not define; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
 }
 
 /// Why a text could not be read as a job at all (before any field is looked at).
@@ -399,9 +595,7 @@ pub fn parse_job(text: &str) -> Result<JobFile, ParseError> {
             message: "job: must be a JSON object".to_string(),
         });
     }
-    serde_json::from_value(value).map_err(|e| ParseError {
-        message: format!("job: {e}"),
-    })
+    Ok(JobFile::take(value))
 }
 
 /// Writes a job file as pretty JSON, the form the app exports.
@@ -409,4 +603,94 @@ pub fn job_to_json(job: &JobFile) -> String {
     // Serialising plain data with string keys cannot fail; fall back to an empty object regardless
     // so a caller never sees a panic.
     serde_json::to_string_pretty(job).unwrap_or_else(|_| "{}".to_string())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use serde_json::json;
+
+    /// Values at the edges of each JSON type a field can hold.
+    fn edges() -> Vec<Value> {
+        let mut out = vec![
+            json!(null),
+            json!(true),
+            json!(0),
+            json!(-0.0),
+            json!(3),
+            json!(3.0),
+            json!(-3),
+            json!(4294967295u64),
+            json!(4294967296u64),
+            json!(u64::MAX),
+            json!(i64::MIN),
+            json!(1e308),
+            json!(2.5e-320),
+            json!(""),
+            json!("12"),
+            json!([]),
+            json!({}),
+            json!({"a": 1}),
+        ];
+        let pairs = [
+            json!([3, 0.5]),
+            json!([3.0, 0.5]),
+            json!(["3", 0.5]),
+            json!([3]),
+            json!([3, 0.5, 1]),
+            json!([-1, 0.5]),
+        ];
+        for p in pairs {
+            out.push(json!([p.clone()]));
+            out.push(json!([[5, 0.2], p.clone()]));
+            out.push(p);
+        }
+        out
+    }
+
+    /// The readers here take exactly what serde_json's own readers of the same types take, and
+    /// read the same value from it: serde_json read every job file before these readers did, so
+    /// it is the independent model of which values a field accepts.
+    #[test]
+    fn each_field_type_reads_what_serde_json_reads() {
+        fn same<T>(v: &Value)
+        where
+            T: FromJson + serde::de::DeserializeOwned + PartialEq + std::fmt::Debug,
+        {
+            let theirs = serde_json::from_value::<T>(v.clone()).ok();
+            let ours = T::fits(v).then(|| T::take(v.clone()));
+            assert_eq!(ours, theirs, "{v} as {}", std::any::type_name::<T>());
+        }
+        for v in edges() {
+            same::<f64>(&v);
+            same::<u32>(&v);
+            same::<bool>(&v);
+            same::<String>(&v);
+            same::<Value>(&v);
+            same::<(u32, f64)>(&v);
+            same::<Vec<(u32, f64)>>(&v);
+        }
+    }
+
+    /// A key the form does not define is kept verbatim (one spelt `unknown` too), a value of the
+    /// wrong type is kept as it stood, and both survive the round trip.
+    #[test]
+    fn unknown_keys_and_wrong_values_are_kept() {
+        let text = r#"{"version":3.0,"unknown":1,"wats":[2],"system":"split",
+            "loads":[{"watts":"x","harmonics":[[3,0.5,1]],"slot":4294967296},7,null]}"#;
+        let file = parse_job(text).unwrap();
+        assert_eq!(file.version, Raw::Invalid(json!(3.0)));
+        assert_eq!(file.unknown.get("unknown"), Some(&json!(1)));
+        assert_eq!(file.unknown.get("wats"), Some(&json!([2])));
+        assert_eq!(file.system, Raw::Invalid(json!("split")));
+        let loads = file.loads.given().unwrap();
+        assert_eq!(loads.len(), 3);
+        let first = loads[0].given().unwrap();
+        assert_eq!(first.watts, Raw::Invalid(json!("x")));
+        assert_eq!(first.harmonics, Raw::Invalid(json!([[3, 0.5, 1]])));
+        assert_eq!(first.slot, Raw::Invalid(json!(4294967296u64)));
+        assert_eq!(loads[1], Raw::Invalid(json!(7)));
+        assert_eq!(loads[2], Raw::Absent);
+        assert_eq!(parse_job(&job_to_json(&file)).unwrap(), file);
+    }
 }

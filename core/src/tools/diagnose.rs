@@ -22,14 +22,14 @@
 //! supply explains is reported as such, not as a verdict.
 
 use crate::fields::{Checker, Problem, Rule, Unknown};
-use crate::job::{JobFile, Raw, SystemFile};
+use crate::job::{file_form, FromJson, JobFile, Raw, SystemFile};
 pub use crate::job::{MeterFile, ReadingFile, ReadingSetFile};
 use crate::system::SystemKind;
 use crate::validate::validate_system;
 use crate::validate::{METER_KEYS, READING_KEYS};
 use crate::validated::Job;
 use num_complex::Complex64;
-use serde::{Deserialize, Serialize};
+use serde::Serialize;
 
 /// Readings format version.
 pub const READINGS_VERSION: u32 = 1;
@@ -43,17 +43,18 @@ pub const SUSPECT_MAX_OHMS: f64 = 0.6;
 /// The least change of a leg current between readings that makes the fit meaningful, amperes.
 pub const MIN_CURRENT_CHANGE_A: f64 = 0.5;
 
-/// The readings file, forgiving like the job file.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct ReadingsFile {
-    pub version: Raw<u32>,
-    pub system: Raw<SystemFile>,
-    pub meter: Raw<MeterFile>,
-    pub readings: Raw<Vec<Raw<ReadingFile>>>,
-    /// Keys this format does not define; validation refuses them.
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+file_form! {
+    /// The readings file, forgiving like the job file.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct ReadingsFile {
+        pub version: Raw<u32>,
+        pub system: Raw<SystemFile>,
+        pub meter: Raw<MeterFile>,
+        pub readings: Raw<Vec<Raw<ReadingFile>>>,
+        /// Keys this format does not define; validation refuses them.
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
 }
 
 /// Where a reading was taken.
@@ -227,9 +228,7 @@ pub fn parse_readings(text: &str) -> Result<Readings, DiagnoseError> {
     if !value.is_object() {
         return Err(one("readings file", "must be a JSON object".to_string()));
     }
-    let file: ReadingsFile =
-        serde_json::from_value(value).map_err(|e| one("readings file", e.to_string()))?;
-    validate_readings(&file)
+    validate_readings(&ReadingsFile::take(value))
 }
 
 /// Validates a readings file.

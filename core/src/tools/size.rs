@@ -31,42 +31,44 @@ use crate::conductors::ampacity::ampacity;
 use crate::conductors::drop::approximate_drop;
 use crate::conductors::{Conductor, Conduit, Material, Size, FEET_PER_METRE};
 use crate::fields::{Checker, Problem, Rule, Unknown};
-use crate::job::{Raw, SystemFile};
+use crate::job::{file_form, FromJson, Raw, SystemFile};
 use crate::system::SystemKind;
 use crate::validate::validate_system;
-use serde::{Deserialize, Serialize};
+use serde::Serialize;
 
-/// The run file, forgiving like the job file.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct RunFile {
-    pub version: Raw<u32>,
-    pub system: Raw<SystemFile>,
-    pub run: Raw<RunFields>,
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+file_form! {
+    /// The run file, forgiving like the job file.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct RunFile {
+        pub version: Raw<u32>,
+        pub system: Raw<SystemFile>,
+        pub run: Raw<RunFields>,
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
 }
 
-/// The run itself.
-#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
-#[serde(default)]
-pub struct RunFields {
-    pub kind: Raw<String>,
-    pub connect: Raw<String>,
-    pub amps: Raw<f64>,
-    pub watts: Raw<f64>,
-    pub power_factor: Raw<f64>,
-    pub length_ft: Raw<f64>,
-    pub length_m: Raw<f64>,
-    pub material: Raw<String>,
-    pub conduit: Raw<String>,
-    pub temperature_c: Raw<f64>,
-    pub column_c: Raw<f64>,
-    pub target_pct: Raw<f64>,
-    pub neutral_amps: Raw<f64>,
-    pub units: Raw<String>,
-    #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-    pub unknown: Unknown,
+file_form! {
+    /// The run itself.
+    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
+    pub struct RunFields {
+        pub kind: Raw<String>,
+        pub connect: Raw<String>,
+        pub amps: Raw<f64>,
+        pub watts: Raw<f64>,
+        pub power_factor: Raw<f64>,
+        pub length_ft: Raw<f64>,
+        pub length_m: Raw<f64>,
+        pub material: Raw<String>,
+        pub conduit: Raw<String>,
+        pub temperature_c: Raw<f64>,
+        pub column_c: Raw<f64>,
+        pub target_pct: Raw<f64>,
+        pub neutral_amps: Raw<f64>,
+        pub units: Raw<String>,
+        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
+        pub unknown: Unknown,
+    }
 }
 
 const RUN_KEYS: &[&str] = &[
@@ -164,8 +166,7 @@ pub fn parse_run(text: &str) -> Result<Run, Vec<Problem>> {
     if !value.is_object() {
         return Err(one("must be a JSON object".to_string()));
     }
-    let file: RunFile = serde_json::from_value(value).map_err(|e| one(e.to_string()))?;
-    validate_run(&file)
+    validate_run(&RunFile::take(value))
 }
 
 /// Validates a run file.
