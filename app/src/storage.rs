@@ -18,9 +18,9 @@
 //! Every failure is a [`StorageError`] returned to the caller; nothing here panics. When local
 //! storage is missing (private mode, blocked) the app keeps computing and says so.
 
-use serde::de::DeserializeOwned;
-use serde::{Deserialize, Serialize};
-use tapline_core::job::{JobFile, Raw, JOB_VERSION};
+use serde::Serialize;
+use serde_json::Value;
+use tapline_core::job::{FromJson, JobFile, Raw, JOB_VERSION};
 
 const JOB_PREFIX: &str = "tapline.v1.job.";
 const ASIDE_PREFIX: &str = "tapline.v1.aside.";
@@ -57,11 +57,10 @@ impl std::fmt::Display for StorageError {
 }
 
 /// A saved job as stored.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct StoredJob {
     pub saved_ms: f64,
     /// How many times the job was saved; a save checks it is still the revision it read.
-    #[serde(default)]
     pub revision: u64,
     pub job: JobFile,
 }
@@ -78,8 +77,7 @@ impl StoredJob {
 }
 
 /// User settings.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(default)]
+#[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Settings {
     pub units: String,
     pub cautions_seen: bool,
@@ -111,16 +109,89 @@ fn raw() -> Result<web_sys::Storage, StorageError> {
         .ok_or(StorageError::Unavailable)
 }
 
-/// `text` read as a `T` through a JSON value, as the engine reads a job file: every stored type
-/// then shares the one reader of JSON text the module already carries, instead of each compiling
-/// a reader of its own.
-fn read<T: DeserializeOwned>(text: &str) -> Result<T, String> {
-    let value: serde_json::Value = serde_json::from_str(text).map_err(|e| e.to_string())?;
-    serde_json::from_value(value).map_err(|e| e.to_string())
+/// A stored item as read from its JSON value. Each is read by hand, as the engine reads a job
+/// file, so that the module carries one reader of JSON text and no reader of JSON values.
+trait Stored: Sized {
+    fn from_value(value: Value) -> Result<Self, String>;
+}
+
+impl Stored for StoredJob {
+    /// `saved_ms` must be a number and `job` an object; `revision` is 0 when absent (a job saved
+    /// before revisions were counted); other keys are ignored.
+    fn from_value(value: Value) -> Result<StoredJob, String> {
+        let Value::Object(mut map) = value else {
+            return Err("not a JSON object".to_string());
+        };
+        let saved_ms = map
+            .get("saved_ms")
+            .and_then(Value::as_f64)
+            .ok_or("saved_ms: missing or not a number")?;
+        let revision = match map.get("revision") {
+            None | Some(Value::Null) => 0,
+            Some(v) => v.as_u64().ok_or("revision: not a whole number")?,
+        };
+        let job = match map.remove("job") {
+            Some(v) if JobFile::fits(&v) => JobFile::take(v),
+            _ => return Err("job: missing or not a JSON object".to_string()),
+        };
+        Ok(StoredJob {
+            saved_ms,
+            revision,
+            job,
+        })
+    }
+}
+
+impl Stored for JobFile {
+    fn from_value(value: Value) -> Result<JobFile, String> {
+        if JobFile::fits(&value) {
+            Ok(JobFile::take(value))
+        } else {
+            Err("not a JSON object".to_string())
+        }
+    }
+}
+
+impl Stored for Settings {
+    /// Each setting of the right type is kept; a missing or mistyped one takes its default.
+    fn from_value(value: Value) -> Result<Settings, String> {
+        let Value::Object(map) = value else {
+            return Err("not a JSON object".to_string());
+        };
+        let mut out = Settings::default();
+        let text = |key: &str, into: &mut String| {
+            if let Some(Value::String(s)) = map.get(key) {
+                into.clone_from(s);
+            }
+        };
+        text("units", &mut out.units);
+        text("lang", &mut out.lang);
+        text("wires", &mut out.wires);
+        text("tech_name", &mut out.tech_name);
+        text("licence", &mut out.licence);
+        if let Some(Value::Bool(b)) = map.get("cautions_seen") {
+            out.cautions_seen = *b;
+        }
+        Ok(out)
+    }
+}
+
+impl Stored for bool {
+    fn from_value(value: Value) -> Result<bool, String> {
+        value
+            .as_bool()
+            .ok_or_else(|| "not true or false".to_string())
+    }
+}
+
+/// `text` read as a `T` through a JSON value.
+fn read<T: Stored>(text: &str) -> Result<T, String> {
+    let value: Value = serde_json::from_str(text).map_err(|e| e.to_string())?;
+    T::from_value(value)
 }
 
 /// The item under `key` read as a `T`; `None` when there is none or it cannot be read.
-fn get<T: DeserializeOwned>(key: &str) -> Option<T> {
+fn get<T: Stored>(key: &str) -> Option<T> {
     let text = raw().ok()?.get_item(key).ok().flatten()?;
     read(&text).ok()
 }
@@ -279,12 +350,47 @@ mod tests {
             r#"{{"saved_ms": 5, "job": {}}}"#,
             tapline_core::job::job_to_json(&demo)
         );
-        let s: StoredJob = serde_json::from_str(&old).unwrap();
+        let s: StoredJob = read(&old).unwrap();
         assert_eq!((s.revision, s.saved_ms), (0, 5.0));
         assert_eq!(s.job, demo);
-        let again: StoredJob = serde_json::from_str(&serde_json::to_string(&s).unwrap()).unwrap();
+        let again: StoredJob = read(&serde_json::to_string(&s).unwrap()).unwrap();
         assert_eq!(again, s);
         assert_eq!(StoredJob::first(demo, 7.0).revision, 1);
+    }
+
+    #[test]
+    fn a_stored_item_of_the_wrong_shape_is_refused_naming_its_field() {
+        assert_eq!(
+            read::<StoredJob>(r#"{"job": {}}"#).unwrap_err(),
+            "saved_ms: missing or not a number"
+        );
+        assert_eq!(
+            read::<StoredJob>(r#"{"saved_ms": 1, "revision": -2, "job": {}}"#).unwrap_err(),
+            "revision: not a whole number"
+        );
+        assert_eq!(
+            read::<StoredJob>(r#"{"saved_ms": 1, "job": [1]}"#).unwrap_err(),
+            "job: missing or not a JSON object"
+        );
+        assert_eq!(read::<StoredJob>("[]").unwrap_err(), "not a JSON object");
+        assert!(read::<StoredJob>(r#"{"saved_ms": 1, "job": {not json"#).is_err());
+        assert_eq!(read::<bool>("true"), Ok(true));
+        assert!(read::<bool>("1").is_err());
+    }
+
+    #[test]
+    fn settings_keep_each_readable_key_and_default_the_rest() {
+        let s: Settings = read(r#"{"units": "m", "lang": 3, "cautions_seen": true}"#).unwrap();
+        assert_eq!(
+            s,
+            Settings {
+                units: "m".to_string(),
+                cautions_seen: true,
+                ..Settings::default()
+            }
+        );
+        let back: Settings = read(&serde_json::to_string(&s).unwrap()).unwrap();
+        assert_eq!(back, s);
     }
 
     #[test]
