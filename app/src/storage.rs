@@ -11,8 +11,8 @@
 //!   keystroke while it differs from the saved job (removed once a valid version is saved), so
 //!   nothing typed is lost on a reload; the saved job stays the last valid version;
 //! - `tapline.v1.settings`: `{"units": "ft" | "m", "cautions_seen": bool, "lang": "en" | "es",
-//!   "wires": "na" | "iec", "tech_name": text, "licence": text}` (a missing key takes its
-//!   default, so older settings still read);
+//!   "wires": "na" | "iec", "tech_name": text, "licence": text}` (a missing or mistyped
+//!   key takes its default, so older settings still read);
 //! - `tapline.v1.seeded`: `true` once the demo job has been offered, so deleting it sticks.
 //!
 //! Every failure is a [`StorageError`] returned to the caller; nothing here panics. When local
