@@ -38,7 +38,7 @@
 //! A key the format does not define is kept verbatim (so the file round-trips) and refused by
 //! validation with the nearest known key (`loads[0].wats: unknown field (did you mean watts?)`).
 
-use serde::{Deserialize, Deserializer, Serialize, Serializer};
+use serde::{Serialize, Serializer};
 use serde_json::Value;
 
 pub use crate::fields::Unknown;
@@ -100,12 +100,6 @@ impl<T: FromJson> Raw<T> {
         } else {
             Raw::Invalid(value)
         }
-    }
-}
-
-impl<'de, T: FromJson> Deserialize<'de> for Raw<T> {
-    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
-        Ok(Raw::read(Value::deserialize(d)?))
     }
 }
 
@@ -217,7 +211,7 @@ impl<A: FromJson, B: FromJson> FromJson for (A, B) {
 
 /// Where a file struct keeps one key's value: a [`Raw`] field reads it as its type, and the
 /// struct's `unknown` keeps the key and its value verbatim.
-pub trait Slot {
+pub(crate) trait Slot {
     fn put(&mut self, key: String, value: Value);
 }
 
@@ -268,20 +262,6 @@ macro_rules! file_form {
                     }
                 }
                 out
-            }
-        }
-
-        impl<'de> serde::Deserialize<'de> for $name {
-            fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<$name, D::Error> {
-                let value = <serde_json::Value as serde::Deserialize>::deserialize(d)?;
-                if value.is_object() {
-                    Ok(<$name as $crate::job::FromJson>::take(value))
-                } else {
-                    Err(<D::Error as serde::de::Error>::custom(concat!(
-                        stringify!($name),
-                        ": must be a JSON object"
-                    )))
-                }
             }
         }
     };
