@@ -11,10 +11,11 @@
 //! converges or returns a [`SolveError`]; it never returns NaN.
 
 use crate::linalg::{div, inv, solve_in_place};
-use crate::loads::{Characteristic, Model, Shape, State};
+use crate::loads::{Model, Shape, State};
 use crate::network::{at_harmonic, Network, NeutralPath, Node, Source, NEUTRAL_INDEX};
 use crate::validated::NeutralState;
 use num_complex::Complex64;
+use std::cell::Cell;
 
 /// Most fixed-point iterations for one set of load states.
 pub const MAX_ITERATIONS: usize = 200;
@@ -179,7 +180,7 @@ const REFERENCE: usize = usize::MAX;
 
 /// The nodal equations as stamped so far: the admittance matrix (n × n, row-major), the
 /// right-hand side, and which nodes an element ties to the reference.
-#[derive(Clone)]
+#[derive(Clone, Default)]
 struct Stamped {
     y: Vec<Complex64>,
     rhs: Vec<Complex64>,
@@ -187,12 +188,14 @@ struct Stamped {
 }
 
 impl Stamped {
-    fn new(n: usize) -> Stamped {
-        Stamped {
-            y: vec![ZERO; n * n],
-            rhs: vec![ZERO; n],
-            grounded: vec![false; n],
-        }
+    /// Becomes the empty equations of an n-node network, keeping its buffers.
+    fn clear_to(&mut self, n: usize) {
+        self.y.clear();
+        self.y.resize(n * n, ZERO);
+        self.rhs.clear();
+        self.rhs.resize(n, ZERO);
+        self.grounded.clear();
+        self.grounded.resize(n, false);
     }
 
     /// Becomes a copy of `other` without allocating.
@@ -218,6 +221,7 @@ impl Stamped {
 
 /// The part of the nodal equations that does not depend on the loads at one order: the source,
 /// the neutral conductor, the earth path and the shared neutrals, and the nodes held fixed.
+#[derive(Default)]
 struct Base {
     order: u32,
     eq: Stamped,
@@ -245,18 +249,7 @@ fn stamp(
 }
 
 impl Base {
-    fn new(net: &Network, h: u32) -> Result<Base, SolveError> {
-        let n = net.node_count();
-        let mut base = Base {
-            order: h,
-            eq: Stamped::new(n),
-            fixed: vec![None; n],
-        };
-        base.fill(net, h)?;
-        Ok(base)
-    }
-
-    /// Restamps this base for `net` (of the same nodes) at order `h`, in place.
+    /// Restamps this base for `net` at order `h`, in place.
     // The admittance matrix is stamped by node index; indices read more clearly than iterators.
     #[allow(clippy::needless_range_loop)]
     fn fill(&mut self, net: &Network, h: u32) -> Result<(), SolveError> {
@@ -264,10 +257,9 @@ impl Base {
         let legs = net.leg_count();
         let base = self;
         base.order = h;
-        base.eq.y.fill(ZERO);
-        base.eq.rhs.fill(ZERO);
-        base.eq.grounded.fill(false);
-        base.fixed.fill(None);
+        base.eq.clear_to(n);
+        base.fixed.clear();
+        base.fixed.resize(n, None);
         match net.source() {
             Source::Stiff => {
                 for k in 0..legs {
@@ -309,6 +301,7 @@ impl Base {
 }
 
 /// What the load loop reads of each load, in flat arrays: the hot path touches nothing else.
+#[derive(Default)]
 struct LoadTable {
     /// The load's two node indices (see [`ends`]).
     ends: Vec<(usize, usize)>,
@@ -320,7 +313,6 @@ struct LoadTable {
     watched: Vec<bool>,
     /// Whether any load is watched (when none is, one step solves the network).
     any_watched: bool,
-    characteristic: Vec<Characteristic>,
     /// Its admittance running at rated voltage, where every solve starts.
     rated_y: Vec<Complex64>,
     /// Which of `places` it sits on.
@@ -341,51 +333,48 @@ struct Place {
 }
 
 impl LoadTable {
-    fn new(net: &Network) -> LoadTable {
+    /// Becomes the table of `net`'s loads, keeping its buffers.
+    fn fill(&mut self, net: &Network) {
         let loads = net.loads();
-        let ends: Vec<(usize, usize)> = loads.iter().map(|p| ends(net, p)).collect();
-        let mut places: Vec<Place> = Vec::new();
-        let place = loads
-            .iter()
-            .zip(&ends)
-            .map(|(p, &(ra, rb))| {
-                let found = places.iter().position(|s| s.a == p.a && s.b == p.b);
-                found.unwrap_or_else(|| {
-                    places.push(Place {
-                        a: p.a,
-                        b: p.b,
-                        ra,
-                        rb,
-                    });
-                    places.len() - 1
-                })
-            })
-            .collect();
-        let watched: Vec<bool> = loads
-            .iter()
-            .map(|p| p.load.is_on() && p.load.model().is_nonlinear())
-            .collect();
-        LoadTable {
-            ends,
-            branch: loads.iter().map(|p| p.branch).collect(),
-            on: loads.iter().map(|p| p.load.is_on()).collect(),
-            any_watched: watched.iter().any(|w| *w),
-            watched,
-            characteristic: loads.iter().map(|p| p.characteristic).collect(),
-            rated_y: loads
-                .iter()
-                .map(|p| {
-                    p.characteristic
-                        .admittance(p.load.rated_v(), State::Running)
-                })
-                .collect(),
-            place,
-            places,
+        self.ends.clear();
+        self.ends.extend(loads.iter().map(|p| ends(net, p)));
+        self.places.clear();
+        self.place.clear();
+        for (p, &(ra, rb)) in loads.iter().zip(&self.ends) {
+            let found = self.places.iter().position(|s| s.a == p.a && s.b == p.b);
+            let at = found.unwrap_or_else(|| {
+                self.places.push(Place {
+                    a: p.a,
+                    b: p.b,
+                    ra,
+                    rb,
+                });
+                self.places.len() - 1
+            });
+            self.place.push(at);
         }
+        self.watched.clear();
+        self.watched.extend(
+            loads
+                .iter()
+                .map(|p| p.load.is_on() && p.load.model().is_nonlinear()),
+        );
+        self.any_watched = self.watched.iter().any(|w| *w);
+        self.branch.clear();
+        self.branch.extend(loads.iter().map(|p| p.branch));
+        self.on.clear();
+        self.on.extend(loads.iter().map(|p| p.load.is_on()));
+        self.rated_y.clear();
+        self.rated_y.extend(loads.iter().map(|p| {
+            p.characteristic
+                .admittance(p.load.rated_v(), State::Running)
+        }));
     }
 }
 
-/// Buffers reused between solves of one network.
+/// The solver's buffers. Each solve fills them afresh for its network (see
+/// [`Workspace::prepare`]), so that only their allocations carry over from one solve to the next.
+#[derive(Default)]
 struct Workspace {
     n: usize,
     base: Base,
@@ -406,33 +395,68 @@ struct Workspace {
     /// The node voltages of the last solve.
     v: Vec<Option<Complex64>>,
     table: LoadTable,
-    /// The grouping of the loads for the states last iterated.
-    grouping: Option<Grouping>,
+    /// The grouping of the loads for the states last iterated, when `grouped`: it belongs to the
+    /// network being solved only once [`iterate`] has made it for that network.
+    grouping: Grouping,
+    grouped: bool,
     scratch: Scratch,
+    /// The loads' currents summed by place, in [`finish`].
+    at_place: Vec<Complex64>,
+    /// The lists of [`solve_harmonics`].
+    harmonic: HarmonicLists,
 }
 
 impl Workspace {
-    fn new(net: &Network) -> Result<Workspace, SolveError> {
+    /// Makes this workspace `net`'s, with its base at the fundamental. Every buffer is refilled or
+    /// emptied here, so nothing of a network solved before is left in it but allocations.
+    fn prepare(&mut self, net: &Network) -> Result<(), SolveError> {
         let n = net.node_count();
-        Ok(Workspace {
-            n,
-            base: Base::new(net, 1)?,
-            pass: Stamped::new(n),
-            eq: Stamped::new(n),
-            a0: Vec::with_capacity(n * n),
-            b0: Vec::with_capacity(n),
-            a: Vec::with_capacity(n * n),
-            b: Vec::with_capacity(n),
-            unknown: Vec::with_capacity(n),
-            slot: vec![None; n],
-            reach: vec![false; n],
-            stack: Vec::with_capacity(n),
-            v: vec![None; n],
-            table: LoadTable::new(net),
-            grouping: None,
-            scratch: Scratch::default(),
-        })
+        self.n = n;
+        self.base.fill(net, 1)?;
+        self.pass.clear_to(n);
+        self.eq.clear_to(n);
+        self.a0.clear();
+        self.b0.clear();
+        self.a.clear();
+        self.b.clear();
+        self.unknown.clear();
+        self.slot.clear();
+        self.slot.resize(n, None);
+        self.reach.clear();
+        self.reach.resize(n, false);
+        self.stack.clear();
+        self.v.clear();
+        self.v.resize(n, None);
+        self.table.fill(net);
+        self.grouped = false;
+        Ok(())
     }
+}
+
+thread_local! {
+    /// The workspace of this thread's last solve, lent to its next one. A solve of forty loads
+    /// makes some thirty buffers, and allocating and freeing them cost a sixth of its
+    /// instructions (counted with callgrind); the live what-if solves at every edit, so the
+    /// buffers are kept.
+    static SPARE: Cell<Option<Box<Workspace>>> = const { Cell::new(None) };
+}
+
+/// Borrows the thread's spare workspace (an empty one when another solve holds it, as when a
+/// sweep's callback solves) and prepares it for `net`. Hand it back with [`give_back`].
+fn borrow_workspace(net: &Network) -> Result<Box<Workspace>, SolveError> {
+    let mut ws = SPARE.take().unwrap_or_default();
+    match ws.prepare(net) {
+        Ok(()) => Ok(ws),
+        Err(e) => {
+            give_back(ws);
+            Err(e)
+        }
+    }
+}
+
+/// Keeps `ws` as the thread's spare workspace.
+fn give_back(ws: Box<Workspace>) {
+    SPARE.set(Some(ws));
 }
 
 /// The neutral conductor's admittance at order `h`, zero when open.
@@ -723,8 +747,10 @@ fn gives_way(net: &Network, states: &[State], vt: &[Option<f64>], all: bool) -> 
 }
 
 fn solve_with(net: &Network, harmonics: bool) -> Result<Solution, SolveError> {
-    let mut ws = Workspace::new(net)?;
-    solve_in(net, harmonics, &mut ws)
+    let mut ws = borrow_workspace(net)?;
+    let out = solve_in(net, harmonics, &mut ws);
+    give_back(ws);
+    out
 }
 
 /// Solves the fundamental of `net` in each of the neutral `states` in turn (the sweep), handing
@@ -744,13 +770,18 @@ pub fn solve_fundamental_each<E: From<SolveError>>(
     states: &[NeutralState],
     mut each: impl FnMut(usize, &Solution) -> Result<(), E>,
 ) -> Result<(), E> {
-    let mut ws = Workspace::new(net)?;
-    for (i, state) in states.iter().enumerate() {
-        net.set_neutral(*state);
-        ws.base.fill(net, 1)?;
-        each(i, &solve_in(net, false, &mut ws)?)?;
-    }
-    Ok(())
+    let mut ws = borrow_workspace(net)?;
+    let mut all = || {
+        for (i, state) in states.iter().enumerate() {
+            net.set_neutral(*state);
+            ws.base.fill(net, 1)?;
+            each(i, &solve_in(net, false, &mut ws)?)?;
+        }
+        Ok(())
+    };
+    let out = all();
+    give_back(ws);
+    out
 }
 
 /// [`solve_with`] in a workspace made for `net` whose base is at the fundamental.
@@ -935,16 +966,24 @@ struct Group {
     last_moved: f64,
 }
 
-/// Gathers the loads whose admittance varies in `states` into [`Group`]s, with one list of every
-/// group's loads and their coefficients (each group's in load order).
-fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Complex64)>) {
-    let mut out: Vec<Group> = Vec::with_capacity(states.len());
-    let mut tagged: Vec<(usize, usize, Complex64)> = Vec::with_capacity(states.len());
+/// Gathers the loads whose admittance varies in `states` into [`Group`]s (`out`), with one list
+/// of every group's loads and their coefficients (`members`, each group's in load order).
+/// `tagged` is a buffer.
+fn groups(
+    net: &Network,
+    table: &LoadTable,
+    states: &[State],
+    out: &mut Vec<Group>,
+    members: &mut Vec<(usize, Complex64)>,
+    tagged: &mut Vec<(usize, usize, Complex64)>,
+) {
+    out.clear();
+    tagged.clear();
     for (k, state) in states.iter().enumerate() {
         if !table.watched[k] {
             continue;
         }
-        let Some((shape, coefficient)) = table.characteristic[k].split(*state) else {
+        let Some((shape, coefficient)) = net.loads()[k].characteristic.split(*state) else {
             continue;
         };
         let (a, b) = table.ends[k];
@@ -978,7 +1017,7 @@ fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Compl
     // Each group's loads, in load order, side by side: a counting sort by group (the loads
     // arrive in load order), with each group's range end first counting its loads and then
     // serving as the place the next one goes.
-    for (g, _, _) in &tagged {
+    for (g, _, _) in tagged.iter() {
         out[*g].members.end += 1;
     }
     let mut start = 0;
@@ -987,14 +1026,14 @@ fn groups(table: &LoadTable, states: &[State]) -> (Vec<Group>, Vec<(usize, Compl
         g.members = start..start;
         start += count;
     }
-    let mut members = vec![(0, ZERO); tagged.len()];
-    for (g, k, c) in tagged {
+    members.clear();
+    members.resize(tagged.len(), (0, ZERO));
+    for &(g, k, c) in tagged.iter() {
         let group = &mut out[g];
         members[group.members.end] = (k, c);
         group.members.end += 1;
         group.coefficients += c;
     }
-    (out, members)
 }
 
 /// The fixed-point iteration y ← load admittance at the voltage the last solve gave, damped when the
@@ -1019,18 +1058,20 @@ fn iterate(
     let tol = TOLERANCE * net.system().volts_to_neutral();
     let nonlinear = ws.table.any_watched;
     // The groups depend only on the load states, which a sweep's points and most passes share.
-    let mut grouping = match ws.grouping.take() {
-        Some(g) if g.states == states => g,
-        _ => Grouping::new(&ws.table, states),
-    };
+    let mut grouping = std::mem::take(&mut ws.grouping);
+    if !(ws.grouped && grouping.states == states) {
+        grouping.fill(net, &ws.table, states);
+        ws.grouped = true;
+    }
     let out = iterate_grouped(y, ws, &mut grouping, tol, nonlinear);
-    ws.grouping = Some(grouping);
+    ws.grouping = grouping;
     out
 }
 
 /// The loads of one set of states sorted for [`iterate`]: its [`Group`]s (reset at each use), the
 /// list of their members with each one's coefficient, which loads vary, and the watched loads held
 /// constant.
+#[derive(Default)]
 struct Grouping {
     states: Vec<State>,
     groups: Vec<Group>,
@@ -1039,28 +1080,36 @@ struct Grouping {
     steady: Vec<(usize, Option<Complex64>)>,
     /// Where each group lands in the reduced equations of the pass being solved.
     landings: Vec<Landing>,
+    /// A buffer of [`groups`].
+    tagged: Vec<(usize, usize, Complex64)>,
 }
 
 impl Grouping {
-    fn new(table: &LoadTable, states: &[State]) -> Grouping {
-        let (groups, members) = groups(table, states);
-        let mut varies = vec![false; states.len()];
-        for (k, _) in &members {
-            varies[*k] = true;
+    /// Becomes the grouping of `net`'s loads (as in `table`) in `states`, keeping its buffers.
+    fn fill(&mut self, net: &Network, table: &LoadTable, states: &[State]) {
+        groups(
+            net,
+            table,
+            states,
+            &mut self.groups,
+            &mut self.members,
+            &mut self.tagged,
+        );
+        self.varies.clear();
+        self.varies.resize(states.len(), false);
+        for (k, _) in &self.members {
+            self.varies[*k] = true;
         }
         // Watched loads held constant in this pass still count towards convergence.
-        let steady = (0..states.len())
-            .filter(|&k| table.watched[k] && !varies[k])
-            .map(|k| (k, None))
-            .collect();
-        Grouping {
-            states: states.to_vec(),
-            groups,
-            members,
-            varies,
-            steady,
-            landings: Vec::new(),
-        }
+        self.steady.clear();
+        let varies = &self.varies;
+        self.steady.extend(
+            (0..states.len())
+                .filter(|&k| table.watched[k] && !varies[k])
+                .map(|k| (k, None)),
+        );
+        self.states.clear();
+        self.states.extend_from_slice(states);
     }
 }
 
@@ -1311,7 +1360,9 @@ fn finish(
     let mut leg_current = [ZERO; 3];
     let mut into_neutral = ZERO;
     let mut shared_current = vec![ZERO; net.shared().len()];
-    let mut at_place = vec![ZERO; ws.table.places.len()];
+    let at_place = &mut ws.at_place;
+    at_place.clear();
+    at_place.resize(ws.table.places.len(), ZERO);
     for (k, p) in net.loads().iter().enumerate() {
         let (a, b) = ws.table.ends[k];
         let panel_v = pair(&v, a, b);
@@ -1335,7 +1386,7 @@ fn finish(
             },
         });
     }
-    for (place, i) in ws.table.places.iter().zip(at_place) {
+    for (place, &i) in ws.table.places.iter().zip(&ws.at_place) {
         add_branch_current(
             &mut leg_current,
             &mut into_neutral,
@@ -1379,6 +1430,35 @@ fn solve_harmonics(
     sol: &mut Solution,
     ws: &mut Workspace,
 ) -> Result<(), SolveError> {
+    let mut lists = std::mem::take(&mut ws.harmonic);
+    let out = solve_harmonics_in(net, states, y, sol, ws, &mut lists);
+    ws.harmonic = lists;
+    out
+}
+
+/// The lists of [`solve_harmonics`], kept in the workspace between solves.
+#[derive(Default)]
+struct HarmonicLists {
+    /// The orders the sources inject, ascending.
+    orders: Vec<u32>,
+    between: Vec<Between>,
+    each: Vec<Harmonic>,
+}
+
+/// [`solve_harmonics`] with its lists.
+fn solve_harmonics_in(
+    net: &Network,
+    states: &[State],
+    y: &[Complex64],
+    sol: &mut Solution,
+    ws: &mut Workspace,
+    lists: &mut HarmonicLists,
+) -> Result<(), SolveError> {
+    let HarmonicLists {
+        orders,
+        between,
+        each,
+    } = lists;
     let is_source = |k: usize| {
         let p = &net.loads()[k];
         p.load.is_on()
@@ -1387,7 +1467,7 @@ fn solve_harmonics(
     };
     // The orders any source injects, ascending and each once: a service has a handful of distinct
     // orders, so each is placed by a scan rather than by sorting every load's list together.
-    let mut orders: Vec<u32> = Vec::new();
+    orders.clear();
     for (k, p) in net.loads().iter().enumerate() {
         if !is_source(k) {
             continue;
@@ -1406,18 +1486,14 @@ fn solve_harmonics(
     // Loads on one place see one voltage, so each order stamps their admittances and sources as
     // one sum and takes their current to the legs once. Each load's own current is still formed,
     // for its harmonic rms.
-    let mut between: Vec<Between> = ws
-        .table
-        .places
-        .iter()
-        .map(|&place| Between {
-            place,
-            y: ZERO,
-            injected: ZERO,
-            vp: None,
-        })
-        .collect();
-    let mut each: Vec<Harmonic> = Vec::with_capacity(y.len());
+    between.clear();
+    between.extend(ws.table.places.iter().map(|&place| Between {
+        place,
+        y: ZERO,
+        injected: ZERO,
+        vp: None,
+    }));
+    each.clear();
     for (k, (yk, r)) in y.iter().zip(&sol.loads).enumerate() {
         let at = if ws.table.on[k] {
             ws.table.place[k]
@@ -1436,22 +1512,22 @@ fn solve_harmonics(
             };
             Harmonic::source(at, r.current.norm(), unit)
         } else {
-            Harmonic::passive(at, inv(*yk))
+            Harmonic::passive(at, inv(*yk), net.loads()[k].branch)
         });
     }
     let n = ws.n;
     sol.harmonics.reserve_exact(orders.len());
-    for h in orders {
+    for &h in orders.iter() {
         if ws.base.order != h {
             ws.base.fill(net, h)?;
         }
         ws.eq.copy_from(&ws.base.eq);
         let hf = f64::from(h);
-        for s in &mut between {
+        for s in between.iter_mut() {
             s.y = ZERO;
             s.injected = ZERO;
         }
-        for (k, (p, e)) in net.loads().iter().zip(&mut each).enumerate() {
+        for (k, (p, e)) in net.loads().iter().zip(each.iter_mut()).enumerate() {
             if e.at == NOWHERE {
                 continue;
             }
@@ -1475,11 +1551,12 @@ fn solve_harmonics(
                     };
                     between[e.at].injected += e.injected;
                 }
+                None if e.resistive => {}
                 None => e.y = inv(at_harmonic(e.z1, h) + zb),
             }
             between[e.at].y += e.y;
         }
-        for s in &between {
+        for s in between.iter() {
             let Place { ra, rb, .. } = s.place;
             ws.eq.admit(n, ra, rb, s.y);
             if s.injected != ZERO {
@@ -1491,13 +1568,13 @@ fn solve_harmonics(
         let mut legs = [ZERO; 3];
         let mut into_neutral = ZERO;
         let mut shared = vec![ZERO; net.shared().len()];
-        for s in &mut between {
+        for s in between.iter_mut() {
             let Place { a, b, ra, rb } = s.place;
             s.vp = pair(v, ra, rb);
             let i = s.vp.map(|vp| vp * s.y).unwrap_or(ZERO) + s.injected;
             add_branch_current(&mut legs, &mut into_neutral, &mut shared, a, b, i);
         }
-        for e in &mut each {
+        for e in each.iter_mut() {
             if e.at == NOWHERE {
                 continue;
             }
@@ -1515,7 +1592,7 @@ fn solve_harmonics(
             shared_current: shared,
         });
     }
-    for (r, e) in sol.loads.iter_mut().zip(each) {
+    for (r, e) in sol.loads.iter_mut().zip(each.iter()) {
         r.harmonic_rms = e.sum_sq.sqrt();
     }
     Ok(())
@@ -1540,6 +1617,10 @@ struct Harmonic {
     source: Option<(f64, Complex64)>,
     /// A passive load's series impedance at the fundamental, ohms.
     z1: Complex64,
+    /// A passive load whose impedance and branch have no reactance: it presents the same
+    /// admittance at every order, worked out once (R + j·h·0 is R exactly, so nothing rounds
+    /// differently).
+    resistive: bool,
     /// At the order being solved: the admittance it presents (with its branch) and the current its
     /// source injects (zero for a passive load).
     y: Complex64,
@@ -1554,18 +1635,22 @@ impl Harmonic {
             at,
             source: Some((i1, unit)),
             z1: ZERO,
+            resistive: false,
             y: ZERO,
             injected: ZERO,
             sum_sq: 0.0,
         }
     }
 
-    fn passive(at: usize, z1: Complex64) -> Harmonic {
+    /// A passive load of impedance `z1` at the fundamental behind branch conductors `branch`.
+    fn passive(at: usize, z1: Complex64, branch: Complex64) -> Harmonic {
+        let resistive = z1.im == 0.0 && branch.im == 0.0;
         Harmonic {
             at,
             source: None,
             z1,
-            y: ZERO,
+            resistive,
+            y: if resistive { inv(z1 + branch) } else { ZERO },
             injected: ZERO,
             sum_sq: 0.0,
         }

@@ -319,6 +319,31 @@ proptest! {
     }
 }
 
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 100, .. ProptestConfig::default() })]
+
+    /// The solver keeps its buffers from one solve to the next on a thread, and nothing else:
+    /// each job of a run of them (two jobs and the first with its loads in reverse order, which
+    /// has as many loads in the same states but other groups and places) solves exactly as it
+    /// does first on a thread of its own. Compared by their Debug text, which prints every
+    /// figure to the last bit.
+    #[test]
+    fn a_solve_leaves_nothing_behind_for_the_next(a in gen::job(false), b in gen::job(false)) {
+        let mut reversed = a.clone();
+        reversed["loads"].as_array_mut().expect("generated loads").reverse();
+        for v in [&a, &b, &reversed] {
+            let net = Network::new(&parse(v));
+            let alone = {
+                let net = net.clone();
+                std::thread::spawn(move || format!("{:?}", solve(&net)))
+                    .join()
+                    .expect("the solve's thread")
+            };
+            prop_assert_eq!(format!("{:?}", solve(&net)), alone);
+        }
+    }
+}
+
 /// A floating neutral with nothing on it gives a defined answer: leg-to-leg loads still solve and
 /// voltages to neutral are reported as undefined rather than invented.
 #[test]
