@@ -1512,7 +1512,7 @@ fn solve_harmonics_in(
             };
             Harmonic::source(at, r.current.norm(), unit)
         } else {
-            Harmonic::passive(at, inv(*yk), net.loads()[k].branch)
+            Harmonic::passive(at, inv(*yk))
         });
     }
     let n = ws.n;
@@ -1551,7 +1551,6 @@ fn solve_harmonics_in(
                     };
                     between[e.at].injected += e.injected;
                 }
-                None if e.resistive => {}
                 None => e.y = inv(at_harmonic(e.z1, h) + zb),
             }
             between[e.at].y += e.y;
@@ -1617,10 +1616,6 @@ struct Harmonic {
     source: Option<(f64, Complex64)>,
     /// A passive load's series impedance at the fundamental, ohms.
     z1: Complex64,
-    /// A passive load whose impedance and branch have no reactance: it presents the same
-    /// admittance at every order, worked out once (R + j·h·0 is R exactly, so nothing rounds
-    /// differently).
-    resistive: bool,
     /// At the order being solved: the admittance it presents (with its branch) and the current its
     /// source injects (zero for a passive load).
     y: Complex64,
@@ -1635,22 +1630,18 @@ impl Harmonic {
             at,
             source: Some((i1, unit)),
             z1: ZERO,
-            resistive: false,
             y: ZERO,
             injected: ZERO,
             sum_sq: 0.0,
         }
     }
 
-    /// A passive load of impedance `z1` at the fundamental behind branch conductors `branch`.
-    fn passive(at: usize, z1: Complex64, branch: Complex64) -> Harmonic {
-        let resistive = z1.im == 0.0 && branch.im == 0.0;
+    fn passive(at: usize, z1: Complex64) -> Harmonic {
         Harmonic {
             at,
             source: None,
             z1,
-            resistive,
-            y: if resistive { inv(z1 + branch) } else { ZERO },
+            y: ZERO,
             injected: ZERO,
             sum_sq: 0.0,
         }

@@ -1,6 +1,8 @@
 //! Valid-shaped jobs with extreme numbers through every entry point: solve, what-if, sweep,
-//! motor start and the diagnosis of the job's reading sets. The same job gives the same verdict through solve and through the what-if's
-//! matching state; every answer holds only finite numbers or documented nulls.
+//! motor start and the diagnosis of the job's reading sets. The same job gives the same verdict
+//! through solve and through the what-if's matching state, and the same report solved after
+//! every input before it as on a fresh thread; every answer holds only finite numbers or
+//! documented nulls.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
 use tapline_core::validate::NeutralState;
@@ -16,6 +18,19 @@ fuzz_target!(|data: &[u8]| {
     if let Ok(r) = &solved {
         tapline_fuzz::assert_documented(&serde_json::to_value(r).unwrap(), "");
     }
+    // The solver keeps its buffers from one solve to the next on a thread (every input before
+    // this one was solved in them): the report must be exactly the one a fresh thread gives.
+    let alone = {
+        let job = job.clone();
+        std::thread::spawn(move || format!("{:?}", tapline_core::report::analyze(&job)))
+            .join()
+            .unwrap()
+    };
+    assert_eq!(
+        format!("{solved:?}"),
+        alone,
+        "a solve depends on the one before it"
+    );
     if let Ok(w) = tapline_core::whatif::what_if(&job) {
         tapline_fuzz::assert_documented(&serde_json::to_value(&w).unwrap(), "");
         if let (Ok(r), NeutralState::Intact) = (&solved, job.neutral()) {
