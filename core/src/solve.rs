@@ -454,9 +454,17 @@ fn borrow_workspace(net: &Network) -> Result<Box<Workspace>, SolveError> {
     }
 }
 
-/// Keeps `ws` as the thread's spare workspace.
+/// Keeps `ws` as the thread's spare workspace, unless it grew for an unusually large network:
+/// a house or a panel has a handful of nodes and at most some hundreds of loads, and a workspace
+/// grown for thousands of either would hold megabytes on a phone for as long as the app runs.
 fn give_back(ws: Box<Workspace>) {
-    SPARE.set(Some(ws));
+    const KEEP_NODES: usize = 32;
+    const KEEP_LOADS: usize = 4096;
+    if ws.base.eq.y.capacity() <= KEEP_NODES * KEEP_NODES
+        && ws.table.rated_y.capacity() <= KEEP_LOADS
+    {
+        SPARE.set(Some(ws));
+    }
 }
 
 /// The neutral conductor's admittance at order `h`, zero when open.
