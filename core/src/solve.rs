@@ -1655,3 +1655,22 @@ impl Harmonic {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The thread keeps a workspace of a house's size for its next solve, and drops one grown for
+    /// more than 32 nodes (each test runs on a thread of its own, so the spare starts empty).
+    #[test]
+    fn only_a_workspace_of_ordinary_size_is_kept() {
+        let mut large = Box::<Workspace>::default();
+        large.base.eq.clear_to(33);
+        give_back(large);
+        assert!(SPARE.take().is_none());
+        let mut small = Box::<Workspace>::default();
+        small.base.eq.clear_to(3);
+        give_back(small);
+        assert!(SPARE.take().is_some());
+    }
+}
