@@ -209,40 +209,56 @@ impl<A: FromJson, B: FromJson> FromJson for (A, B) {
     }
 }
 
-/// Where a file struct keeps one key's value: a [`Raw`] field reads it as its type, and the
-/// struct's `unknown` keeps the key and its value verbatim.
-pub(crate) trait Slot {
-    fn put(&mut self, key: String, value: Value);
-}
-
-impl<T: FromJson> Slot for Raw<T> {
-    fn put(&mut self, _: String, value: Value) {
-        *self = Raw::read(value);
-    }
-}
-
-impl Slot for Unknown {
-    fn put(&mut self, key: String, value: Value) {
-        self.insert(key, value);
-    }
-}
-
-/// Declares a struct of a file's form (every field a [`Raw`] but `unknown`, the keys the form does
-/// not define) and its reading from a JSON object: each key that names a field goes to it, and
-/// every other key to `unknown`, kept verbatim (a key spelt `unknown` is itself unknown). The
-/// fields are listed once, in the struct, so the reader cannot miss one.
+/// Declares a struct of a file's form and its reading from a JSON object. Every field listed is a
+/// [`Raw`]; the macro adds `unknown`, the keys the form does not define, kept verbatim so that the
+/// file round-trips (validation refuses them). Reading sends each key that names a field to it and
+/// every other key to `unknown` (a key spelt `unknown` too). The fields are listed once, so the
+/// reader cannot miss one.
+///
+/// A form that begins with `omit_absent;` leaves its absent fields out when written; the others
+/// write them as `null` (the readings and run files, whose every key is shown to the person filling
+/// them in).
 macro_rules! file_form {
+    (
+        omit_absent;
+        $(#[$meta:meta])*
+        pub struct $name:ident {
+            $($(#[$field_meta:meta])* pub $field:ident: $ty:ty,)*
+        }
+    ) => {
+        $crate::job::file_form!(@reader $name { $($field)* });
+        $(#[$meta])*
+        #[derive(Clone, Debug, PartialEq, Default, serde::Serialize)]
+        pub struct $name {
+            $(
+                $(#[$field_meta])*
+                #[serde(skip_serializing_if = "crate::job::Raw::is_absent")]
+                pub $field: $ty,
+            )*
+            /// Keys this format does not define, kept so the file round-trips; validation refuses
+            /// them.
+            #[serde(flatten, skip_serializing_if = "crate::job::Unknown::is_empty")]
+            pub unknown: $crate::job::Unknown,
+        }
+    };
     (
         $(#[$meta:meta])*
         pub struct $name:ident {
             $($(#[$field_meta:meta])* pub $field:ident: $ty:ty,)*
         }
     ) => {
+        $crate::job::file_form!(@reader $name { $($field)* });
         $(#[$meta])*
+        #[derive(Clone, Debug, PartialEq, Default, serde::Serialize)]
         pub struct $name {
             $($(#[$field_meta])* pub $field: $ty,)*
+            /// Keys this format does not define, kept so the file round-trips; validation refuses
+            /// them.
+            #[serde(flatten, skip_serializing_if = "crate::job::Unknown::is_empty")]
+            pub unknown: $crate::job::Unknown,
         }
-
+    };
+    (@reader $name:ident { $($field:ident)* }) => {
         impl $crate::job::FromJson for $name {
             fn fits(value: &serde_json::Value) -> bool {
                 value.is_object()
@@ -252,9 +268,7 @@ macro_rules! file_form {
                 if let serde_json::Value::Object(map) = value {
                     for (key, value) in map {
                         match key.as_str() {
-                            $(stringify!($field) => {
-                                $crate::job::Slot::put(&mut out.$field, key, value)
-                            })*
+                            $(stringify!($field) => out.$field = $crate::job::Raw::read(value),)*
                             _ => {
                                 out.unknown.insert(key, value);
                             }
@@ -269,264 +283,164 @@ macro_rules! file_form {
 pub(crate) use file_form;
 
 file_form! {
+    omit_absent;
     /// The whole job file.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct JobFile {
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub version: Raw<u32>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub name: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub notes: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub system: Raw<SystemFile>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub transformer: Raw<TransformerFile>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub service: Raw<ServiceFile>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub neutral: Raw<NeutralFile>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub loads: Raw<Vec<Raw<LoadFile>>>,
         /// Shared-neutral (multiwire) branch circuits that loads may name.
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub multiwire: Raw<Vec<Raw<MultiwireFile>>>,
         /// Meter readings taken on site, one dated set per visit (the first test, the re-test after
         /// a repair). They are kept as typed: the job's solve does not depend on them, and the
         /// diagnosis names any reading it cannot use.
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub readings: Raw<Vec<Raw<ReadingSetFile>>>,
-        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
+    omit_absent;
     /// One visit's meter readings, dated.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct ReadingSetFile {
         /// When the set was taken, as the person or the phone's clock wrote it (`2026-12-02 09:40`).
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub taken: Raw<String>,
         /// What the set was for ("first test", "after tightening the neutral lug").
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub note: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub meter: Raw<MeterFile>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub readings: Raw<Vec<Raw<ReadingFile>>>,
-        /// Keys this format does not define; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
+    omit_absent;
     /// A shared-neutral (multiwire) branch circuit: its id and its neutral conductor.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct MultiwireFile {
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub id: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub material: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub size: Raw<Value>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub length_m: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub length_ft: Raw<f64>,
         /// The NEC Table 310.16 temperature column, °C: 60, 75 or 90 (60 if absent).
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub column_c: Raw<f64>,
-        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
+    omit_absent;
     /// `system`: what the utility delivers at the service.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct SystemFile {
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub kind: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub volts_to_neutral: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub frequency_hz: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub phases: Raw<u32>,
-        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
+    omit_absent;
     /// `transformer`: the distribution transformer feeding the service.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct TransformerFile {
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub kva: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub primary_v: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub impedance_pct: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub x_over_r: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub tap_pct: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub supply_v: Raw<f64>,
         /// `single-phase`, `delta-wye` or `wye-wye`.
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub connection: Raw<String>,
-        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
+    omit_absent;
     /// `service`: the conductors from the transformer to the panel.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct ServiceFile {
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub hot: Raw<ConductorFile>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub neutral: Raw<ConductorFile>,
-        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
+    omit_absent;
     /// A conductor run: a table size and length, or an explicit whole-run impedance.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct ConductorFile {
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub material: Raw<String>,
         /// A size such as `"12"`, `"4/0"`, `"250"`, `"250 kcmil"` or `"16 mm2"`; a bare number is read too.
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub size: Raw<Value>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub length_m: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub length_ft: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub sets: Raw<u32>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub conduit: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub temperature_c: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub r_ohm: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub x_ohm: Raw<f64>,
-        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
+    omit_absent;
     /// `neutral`: the state of the service neutral.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct NeutralFile {
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub state: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub ohms: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub earth_return_ohms: Raw<f64>,
         /// How the state was found on site, in words ("0.35 Ω measured 2026-12-01, neutral lug
         /// warm"): the neutral in a job is the neutral as found, never a what-if.
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub found: Raw<String>,
-        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
+    omit_absent;
     /// One appliance or load.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct LoadFile {
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub name: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub connect: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub model: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub watts: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub rated_v: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub power_factor: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub on: Raw<bool>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub branch: Raw<ConductorFile>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub input_min_v: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub input_max_v: Raw<f64>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub harmonics: Raw<Vec<(u32, f64)>>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub appliance: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub circuit: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub movable: Raw<bool>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub slot: Raw<u32>,
         /// The id of the shared-neutral branch circuit this load is on.
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub multiwire: Raw<String>,
         /// A motor's locked-rotor amperes at rated voltage.
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub locked_rotor_a: Raw<f64>,
         /// A motor's NEC Table 430.7(B) code letter (with `hp`).
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub code_letter: Raw<String>,
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub hp: Raw<f64>,
         /// A motor's locked-rotor current as a multiple of its running current.
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub locked_rotor_multiple: Raw<f64>,
         /// A motor's power factor while starting (locked rotor).
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub start_pf: Raw<f64>,
         /// True for an appliance planned but not installed yet: kept apart from the job as found,
         /// added only in the plan's "after".
-        #[serde(skip_serializing_if = "Raw::is_absent")]
         pub planned: Raw<bool>,
-        /// Keys this format does not define, kept so the file round-trips; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
     /// The meters' resolution.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct MeterFile {
         pub volts_resolution: Raw<f64>,
         pub amps_resolution: Raw<f64>,
-        /// Keys this format does not define; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
     /// One set of readings.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct ReadingFile {
         pub label: Raw<String>,
         /// `panel` (default) or `meter`: where the voltages were read.
@@ -539,9 +453,6 @@ file_form! {
         /// Each leg current's power factor (lagging), as a power-quality clamp shows; 1 if absent.
         pub l1_pf: Raw<f64>,
         pub l2_pf: Raw<f64>,
-        /// Keys this format does not define; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 

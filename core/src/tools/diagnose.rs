@@ -21,7 +21,7 @@
 //! that no conductor can have (negative resistance beyond its uncertainty) or that no steady
 //! supply explains is reported as such, not as a verdict.
 
-use crate::fields::{Checker, Problem, Rule, Unknown};
+use crate::fields::{Checker, Problem, Rule};
 use crate::job::{file_form, FromJson, JobFile, Raw, SystemFile};
 pub use crate::job::{MeterFile, ReadingFile, ReadingSetFile};
 use crate::system::SystemKind;
@@ -45,15 +45,11 @@ pub const MIN_CURRENT_CHANGE_A: f64 = 0.5;
 
 file_form! {
     /// The readings file, forgiving like the job file.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct ReadingsFile {
         pub version: Raw<u32>,
         pub system: Raw<SystemFile>,
         pub meter: Raw<MeterFile>,
         pub readings: Raw<Vec<Raw<ReadingFile>>>,
-        /// Keys this format does not define; validation refuses them.
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 

@@ -30,7 +30,7 @@
 use crate::conductors::ampacity::ampacity;
 use crate::conductors::drop::approximate_drop;
 use crate::conductors::{Conductor, Conduit, Material, Size, FEET_PER_METRE};
-use crate::fields::{Checker, Problem, Rule, Unknown};
+use crate::fields::{Checker, Problem, Rule};
 use crate::job::{file_form, FromJson, Raw, SystemFile};
 use crate::system::SystemKind;
 use crate::validate::validate_system;
@@ -38,19 +38,15 @@ use serde::Serialize;
 
 file_form! {
     /// The run file, forgiving like the job file.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct RunFile {
         pub version: Raw<u32>,
         pub system: Raw<SystemFile>,
         pub run: Raw<RunFields>,
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
 file_form! {
     /// The run itself.
-    #[derive(Clone, Debug, PartialEq, Default, Serialize)]
     pub struct RunFields {
         pub kind: Raw<String>,
         pub connect: Raw<String>,
@@ -66,8 +62,6 @@ file_form! {
         pub target_pct: Raw<f64>,
         pub neutral_amps: Raw<f64>,
         pub units: Raw<String>,
-        #[serde(flatten, skip_serializing_if = "Unknown::is_empty")]
-        pub unknown: Unknown,
     }
 }
 
