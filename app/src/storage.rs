@@ -130,10 +130,8 @@ impl Stored for StoredJob {
             None | Some(Value::Null) => 0,
             Some(v) => v.as_u64().ok_or("revision: not a whole number")?,
         };
-        let job = match map.remove("job") {
-            Some(v) if JobFile::fits(&v) => JobFile::take(v),
-            _ => return Err("job: missing or not a JSON object".to_string()),
-        };
+        let job = JobFile::from_value(map.remove("job").unwrap_or(Value::Null))
+            .map_err(|_| "job: missing or not a JSON object")?;
         Ok(StoredJob {
             saved_ms,
             revision,
