@@ -4,6 +4,7 @@
 
 use serde_json::Value;
 use tapline_core::conductors::FEET_PER_METRE;
+use tapline_core::fields::decimal;
 use tapline_core::job::{
     ConductorFile, JobFile, LoadFile, MultiwireFile, NeutralFile, Raw, SystemFile, TransformerFile,
     JOB_VERSION,
@@ -23,9 +24,9 @@ pub fn number_from_text(text: &str) -> Raw<f64> {
     if t.is_empty() {
         return Raw::Absent;
     }
-    match t.replace(',', ".").parse::<f64>() {
-        Ok(v) if v.is_finite() => Raw::Given(v),
-        _ => Raw::Invalid(Value::String(t.to_string())),
+    match decimal(&t.replace(',', ".")) {
+        Some(v) => Raw::Given(v),
+        None => Raw::Invalid(Value::String(t.to_string())),
     }
 }
 
@@ -758,6 +759,8 @@ mod tests {
     fn numbers_typed_by_hand() {
         assert_eq!(number_from_text(" 12.5 "), Raw::Given(12.5));
         assert_eq!(number_from_text("12,5"), Raw::Given(12.5));
+        assert_eq!(number_from_text("0,125"), Raw::Given(0.125));
+        assert_eq!(number_from_text(".5"), Raw::Given(0.5));
         assert_eq!(number_from_text(""), Raw::Absent);
         assert_eq!(
             number_from_text("abc"),

@@ -105,7 +105,7 @@ impl Size {
             .iter()
             .find_map(|u| t.strip_suffix(u));
         if let Some(num) = metric {
-            let mm2: f64 = num.trim().parse().ok()?;
+            let mm2 = crate::fields::decimal(num.trim())?;
             return METRIC_TABLE
                 .iter()
                 .find(|r| (r.mm2 - mm2).abs() < 1e-9)
