@@ -17,17 +17,38 @@ pub mod panel;
 pub mod readings;
 pub mod sizing;
 
-/// Reads a number typed by a user. Empty text is "absent"; a comma decimal separator is accepted;
-/// anything else that is not a number is kept as typed so validation can name the field.
+/// Reads a number typed by a user. Empty text is "absent"; a comma decimal separator is accepted
+/// (`12,5`), except where it could as well be a thousands separator (`1,500`: one to three digits,
+/// not starting with zero, then exactly three), which is refused rather than guessed: 1.5 W read
+/// for 1500 W would be a confident wrong answer. Anything that is not a number is kept as typed so
+/// validation can name the field.
 pub fn number_from_text(text: &str) -> Raw<f64> {
     let t = text.trim();
     if t.is_empty() {
         return Raw::Absent;
     }
+    if looks_like_thousands(t) {
+        return Raw::Invalid(Value::String(t.to_string()));
+    }
     match decimal(&t.replace(',', ".")) {
         Some(v) => Raw::Given(v),
         None => Raw::Invalid(Value::String(t.to_string())),
     }
+}
+
+/// True for `1,500` or `-12,000`: a comma after one to three digits (the first not zero) and
+/// before exactly three, with nothing else.
+fn looks_like_thousands(t: &str) -> bool {
+    let unsigned = t.strip_prefix(['-', '+']).unwrap_or(t);
+    let Some((whole, rest)) = unsigned.split_once(',') else {
+        return false;
+    };
+    let digits = |s: &str| s.bytes().all(|b| b.is_ascii_digit());
+    (1..=3).contains(&whole.len())
+        && !whole.starts_with('0')
+        && digits(whole)
+        && rest.len() == 3
+        && digits(rest)
 }
 
 /// The text a number field shows for a stored value.
@@ -760,7 +781,17 @@ mod tests {
         assert_eq!(number_from_text(" 12.5 "), Raw::Given(12.5));
         assert_eq!(number_from_text("12,5"), Raw::Given(12.5));
         assert_eq!(number_from_text("0,125"), Raw::Given(0.125));
+        assert_eq!(number_from_text("1,5000"), Raw::Given(1.5));
         assert_eq!(number_from_text(".5"), Raw::Given(0.5));
+        // A comma that may group thousands is not guessed at (common practice, no source: both
+        // readings are in everyday use, so either guess is wrong for someone).
+        for t in ["1,500", "-12,000", "999,999"] {
+            assert_eq!(number_from_text(t), Raw::Invalid(Value::String(t.into())));
+        }
+        assert_eq!(
+            number_from_text("1,500.5"),
+            Raw::Invalid(Value::String("1,500.5".into()))
+        );
         assert_eq!(number_from_text(""), Raw::Absent);
         assert_eq!(
             number_from_text("abc"),
