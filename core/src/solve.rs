@@ -1450,7 +1450,9 @@ struct HarmonicLists {
     /// The orders the sources inject, ascending.
     orders: Vec<u32>,
     between: Vec<Between>,
-    each: Vec<Harmonic>,
+    /// The switched-on loads, passive ones and sources apart, each in load order.
+    passive: Vec<Passive>,
+    sources: Vec<Injector>,
 }
 
 /// [`solve_harmonics`] with its lists.
@@ -1465,22 +1467,55 @@ fn solve_harmonics_in(
     let HarmonicLists {
         orders,
         between,
-        each,
+        passive,
+        sources,
     } = lists;
-    let is_source = |k: usize| {
+    // The switched-on loads, each a source (an electronic load running) or passive.
+    passive.clear();
+    sources.clear();
+    for (k, (yk, r)) in y.iter().zip(&sol.loads).enumerate() {
+        if !ws.table.on[k] {
+            continue;
+        }
         let p = &net.loads()[k];
-        p.load.is_on()
-            && states[k] == State::Running
-            && matches!(p.load.model(), Model::Electronic { .. })
-    };
+        let at = ws.table.place[k];
+        let is_source =
+            states[k] == State::Running && matches!(p.load.model(), Model::Electronic { .. });
+        if is_source {
+            // The unit phasor of the source's terminal voltage (angle zero when it has none): at
+            // order h the source sits at h times that angle, which is the unit phasor's h-th
+            // power, a few complex products instead of an arctangent and a sine and cosine per
+            // order (the power drifts from unit length by about h·1e-16, far below anything
+            // reported).
+            let unit = match r.terminal_v.map(|v| (v, magnitude(v))) {
+                Some((v, m)) if m > 0.0 => Complex64::new(v.re / m, v.im / m),
+                _ => Complex64::new(1.0, 0.0),
+            };
+            sources.push(Injector {
+                k,
+                at,
+                i1: r.current.norm(),
+                unit,
+                y1: *yk,
+                branch: p.branch,
+                y: ZERO,
+                injected: ZERO,
+            });
+        } else {
+            passive.push(Passive {
+                k,
+                at,
+                z1: inv(*yk),
+                branch: p.branch,
+                y: ZERO,
+            });
+        }
+    }
     // The orders any source injects, ascending and each once: a service has a handful of distinct
     // orders, so each is placed by a scan rather than by sorting every load's list together.
     orders.clear();
-    for (k, p) in net.loads().iter().enumerate() {
-        if !is_source(k) {
-            continue;
-        }
-        for (h, f) in p.load.harmonics() {
+    for e in sources.iter() {
+        for (h, f) in net.loads()[e.k].load.harmonics() {
             if *f > 0.0 {
                 if let Err(at) = orders.binary_search(h) {
                     orders.insert(at, *h);
@@ -1493,7 +1528,7 @@ fn solve_harmonics_in(
     }
     // Loads on one place see one voltage, so each order stamps their admittances and sources as
     // one sum and takes their current to the legs once. Each load's own current is still formed,
-    // for its harmonic rms.
+    // for its harmonic rms, whose squares are summed in the load's result until the end.
     between.clear();
     between.extend(ws.table.places.iter().map(|&place| Between {
         place,
@@ -1501,28 +1536,6 @@ fn solve_harmonics_in(
         injected: ZERO,
         vp: None,
     }));
-    each.clear();
-    for (k, (yk, r)) in y.iter().zip(&sol.loads).enumerate() {
-        let at = if ws.table.on[k] {
-            ws.table.place[k]
-        } else {
-            NOWHERE
-        };
-        each.push(if is_source(k) {
-            // The unit phasor of the source's terminal voltage (angle zero when it has none): at
-            // order h the source sits at h times that angle, which is the unit phasor's h-th
-            // power, a few complex products instead of an arctangent and a sine and cosine per
-            // order (the power drifts from unit length by about h·1e-16, far below anything
-            // reported).
-            let unit = match r.terminal_v.map(|v| (v, magnitude(v))) {
-                Some((v, m)) if m > 0.0 => Complex64::new(v.re / m, v.im / m),
-                _ => Complex64::new(1.0, 0.0),
-            };
-            Harmonic::source(at, r.current.norm(), unit)
-        } else {
-            Harmonic::passive(at, inv(*yk))
-        });
-    }
     let n = ws.n;
     sol.harmonics.reserve_exact(orders.len());
     for &h in orders.iter() {
@@ -1535,33 +1548,30 @@ fn solve_harmonics_in(
             s.y = ZERO;
             s.injected = ZERO;
         }
-        for (k, (p, e)) in net.loads().iter().zip(each.iter_mut()).enumerate() {
-            if e.at == NOWHERE {
-                continue;
-            }
-            let zb = at_harmonic(p.branch, h);
-            match e.source {
-                Some((i1, unit)) => {
-                    let frac: f64 = p
-                        .load
-                        .harmonics()
-                        .iter()
-                        .filter(|(o, _)| *o == h)
-                        .map(|(_, f)| f)
-                        .sum();
-                    let i_src = unit.powu(h) * (frac * i1);
-                    let y_norton = Complex64::new(y[k].re, y[k].im / hf);
-                    (e.y, e.injected) = if zb == ZERO {
-                        (y_norton, i_src)
-                    } else {
-                        let through = Complex64::new(1.0, 0.0) + zb * y_norton;
-                        (div(y_norton, through), div(i_src, through))
-                    };
-                    between[e.at].injected += e.injected;
-                }
-                None => e.y = inv(at_harmonic(e.z1, h) + zb),
-            }
+        for e in passive.iter_mut() {
+            e.y = inv(at_harmonic(e.z1, h) + at_harmonic(e.branch, h));
             between[e.at].y += e.y;
+        }
+        for e in sources.iter_mut() {
+            let frac: f64 = net.loads()[e.k]
+                .load
+                .harmonics()
+                .iter()
+                .filter(|(o, _)| *o == h)
+                .map(|(_, f)| f)
+                .sum();
+            let i_src = e.unit.powu(h) * (frac * e.i1);
+            let y_norton = Complex64::new(e.y1.re, e.y1.im / hf);
+            let zb = at_harmonic(e.branch, h);
+            (e.y, e.injected) = if zb == ZERO {
+                (y_norton, i_src)
+            } else {
+                let through = Complex64::new(1.0, 0.0) + zb * y_norton;
+                (div(y_norton, through), div(i_src, through))
+            };
+            let s = &mut between[e.at];
+            s.y += e.y;
+            s.injected += e.injected;
         }
         for s in between.iter() {
             let Place { ra, rb, .. } = s.place;
@@ -1581,12 +1591,13 @@ fn solve_harmonics_in(
             let i = s.vp.map(|vp| vp * s.y).unwrap_or(ZERO) + s.injected;
             add_branch_current(&mut legs, &mut into_neutral, &mut shared, a, b, i);
         }
-        for e in each.iter_mut() {
-            if e.at == NOWHERE {
-                continue;
-            }
+        for e in passive.iter() {
             let through = between[e.at].vp.map(|vp| vp * e.y).unwrap_or(ZERO);
-            e.sum_sq += (through + e.injected).norm_sqr();
+            sol.loads[e.k].harmonic_rms += through.norm_sqr();
+        }
+        for e in sources.iter() {
+            let through = between[e.at].vp.map(|vp| vp * e.y).unwrap_or(ZERO);
+            sol.loads[e.k].harmonic_rms += (through + e.injected).norm_sqr();
         }
         into_neutral += shared_into_neutral(net, &mut shared);
         let (neutral_current, earth_current) = split_return(net, h, v[NEUTRAL_INDEX], into_neutral);
@@ -1599,8 +1610,13 @@ fn solve_harmonics_in(
             shared_current: shared,
         });
     }
-    for (r, e) in sol.loads.iter_mut().zip(each.iter()) {
-        r.harmonic_rms = e.sum_sq.sqrt();
+    for e in passive
+        .iter()
+        .map(|e| e.k)
+        .chain(sources.iter().map(|e| e.k))
+    {
+        let r = &mut sol.loads[e];
+        r.harmonic_rms = r.harmonic_rms.sqrt();
     }
     Ok(())
 }
@@ -1615,45 +1631,35 @@ struct Between {
     vp: Option<Complex64>,
 }
 
-/// One load in the harmonic solves of [`solve_harmonics`].
-struct Harmonic {
-    /// Its [`Place`] (an index of the load table's places); [`NOWHERE`] when switched off.
+/// A switched-on passive load in the harmonic solves of [`solve_harmonics`]: its fundamental
+/// impedance with the reactance scaled by the order, behind its branch conductors alike.
+struct Passive {
+    /// The load's index, and its [`Place`] (an index of the load table's places).
+    k: usize,
     at: usize,
-    /// A source's fundamental current magnitude, amperes, and the unit phasor of its terminal
-    /// voltage; `None` for a passive load.
-    source: Option<(f64, Complex64)>,
-    /// A passive load's series impedance at the fundamental, ohms.
+    /// Its series impedance at the fundamental and its branch conductors' loop, ohms.
     z1: Complex64,
-    /// At the order being solved: the admittance it presents (with its branch) and the current its
-    /// source injects (zero for a passive load).
+    branch: Complex64,
+    /// At the order being solved: the admittance it presents with its branch, siemens.
     y: Complex64,
-    injected: Complex64,
-    /// The sum over the orders solved of its current's squared magnitude, A².
-    sum_sq: f64,
 }
 
-impl Harmonic {
-    fn source(at: usize, i1: f64, unit: Complex64) -> Harmonic {
-        Harmonic {
-            at,
-            source: Some((i1, unit)),
-            z1: ZERO,
-            y: ZERO,
-            injected: ZERO,
-            sum_sq: 0.0,
-        }
-    }
-
-    fn passive(at: usize, z1: Complex64) -> Harmonic {
-        Harmonic {
-            at,
-            source: None,
-            z1,
-            y: ZERO,
-            injected: ZERO,
-            sum_sq: 0.0,
-        }
-    }
+/// A running electronic load in the harmonic solves of [`solve_harmonics`]: a Norton source.
+struct Injector {
+    /// The load's index, and its [`Place`] (an index of the load table's places).
+    k: usize,
+    at: usize,
+    /// Its fundamental current magnitude, amperes, and the unit phasor of its terminal voltage.
+    i1: f64,
+    unit: Complex64,
+    /// Its admittance at the fundamental operating point, siemens, and its branch conductors'
+    /// loop, ohms.
+    y1: Complex64,
+    branch: Complex64,
+    /// At the order being solved: the admittance it presents (with its branch) and the current its
+    /// source injects.
+    y: Complex64,
+    injected: Complex64,
 }
 
 #[cfg(test)]
