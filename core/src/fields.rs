@@ -362,6 +362,26 @@ mod tests {
         }
     }
 
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig { cases: 4000, .. Default::default() })]
+
+        /// Any short text over the characters a number is written with: read by both readers or
+        /// by neither, and to within one unit in the last place (the standard library's `inf` and
+        /// `nan` cannot be spelt with these characters).
+        #[test]
+        fn any_text_of_number_characters_reads_as_the_standard_library_reads_it(
+            text in "[-+0-9.eE]{0,12}"
+        ) {
+            let std = text.parse::<f64>().ok().filter(|v| v.is_finite());
+            let ours = decimal(&text);
+            proptest::prop_assert_eq!(std.is_some(), ours.is_some(), "{}: {:?} against {:?}", text, ours, std);
+            if let (Some(a), Some(b)) = (ours, std) {
+                let apart = (a.to_bits() as i64 - b.to_bits() as i64).abs();
+                proptest::prop_assert!(apart <= 1, "{}: {:e} against {:e}", text, a, b);
+            }
+        }
+    }
+
     #[test]
     fn limits_read_in_round_units() {
         assert_eq!(round(328083.9895013123), "328084");
