@@ -68,6 +68,20 @@ fn round(v: f64) -> String {
     }
 }
 
+/// What a file held where a number belongs, for a message: text as it was typed (in quotes, cut
+/// after 40 characters), or what kind of value it was.
+fn shown(given: &Value) -> String {
+    match given {
+        Value::String(text) if text.chars().count() > 40 => {
+            format!("\"{}…\"", text.chars().take(40).collect::<String>())
+        }
+        Value::String(text) => format!("\"{text}\""),
+        Value::Array(_) => "a list".to_string(),
+        Value::Object(_) => "an object".to_string(),
+        other => other.to_string(),
+    }
+}
+
 /// Collects problems while walking a file.
 #[derive(Debug, Default)]
 pub struct Checker {
@@ -90,8 +104,8 @@ impl Checker {
     pub fn number(&mut self, raw: &Raw<f64>, path: &str, rule: Rule) -> Option<f64> {
         let v = match raw {
             Raw::Absent => return None,
-            Raw::Invalid(_) => {
-                self.fail(path, rule.message());
+            Raw::Invalid(given) => {
+                self.fail(path, format!("{} (got {})", rule.message(), shown(given)));
                 return None;
             }
             Raw::Given(v) => *v,
@@ -379,6 +393,32 @@ mod tests {
                 let apart = (a.to_bits() as i64 - b.to_bits() as i64).abs();
                 proptest::prop_assert!(apart <= 1, "{}: {:e} against {:e}", text, a, b);
             }
+        }
+    }
+
+    /// A number field that holds something else says what it held, so a person sees which of
+    /// their entries was refused (`1,500`, which the app does not guess at, among them).
+    #[test]
+    fn a_field_that_is_not_a_number_says_what_it_held() {
+        let rule = Rule::Between(0.1, 1e6);
+        let cases = [
+            (Value::String("1,500".into()), "(got \"1,500\")"),
+            (Value::Bool(true), "(got true)"),
+            (Value::Null, "(got null)"),
+            (serde_json::json!([1500]), "(got a list)"),
+            (serde_json::json!({"w": 1}), "(got an object)"),
+            (
+                Value::String("x".repeat(50)),
+                "(got \"xxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxx…\")",
+            ),
+        ];
+        for (given, said) in cases {
+            let mut c = Checker::new();
+            assert_eq!(c.number(&Raw::Invalid(given), "loads[0].watts", rule), None);
+            assert_eq!(
+                c.problems[0].message,
+                format!("must be a number from 0.1 to 1000000 {said}")
+            );
         }
     }
 
