@@ -1,6 +1,7 @@
-//! The only module that touches the browser's history, through `gloo-history`'s hash history:
-//! going to a place pushes its address, the back button and the forward button come back here
-//! as a location change, and the state follows the address (see [`crate::route`]).
+//! The only module that touches the browser's history: the place is the address's fragment
+//! (`#/job/…/results`), going to a place pushes a history entry for it, the back button and the
+//! forward button, and an address edited by hand, come back here as a `popstate` event (which a
+//! change of fragment fires as well), and the state follows the address (see [`crate::route`]).
 
 use crate::route::Route;
 use crate::state::AppState;
@@ -9,34 +10,58 @@ use leptos::prelude::*;
 #[cfg(target_arch = "wasm32")]
 mod browser {
     use super::*;
-    use gloo_history::{HashHistory, History};
+    use wasm_bindgen::{closure::Closure, JsCast, JsValue};
 
-    fn history() -> HashHistory {
-        HashHistory::new()
+    fn window() -> web_sys::Window {
+        web_sys::window().expect("the app runs in a browser window")
     }
 
-    /// The place the address names now (`None` for an address the app does not have).
+    /// The place the address names now (`None` for an address the app does not have): the
+    /// fragment's path, without a query; no fragment is the job list.
     pub fn current() -> Option<Route> {
-        Route::parse(history().location().path())
+        let hash = window().location().hash().unwrap_or_default();
+        let path = hash.strip_prefix('#').unwrap_or(&hash);
+        let path = path.split('?').next().unwrap_or_default();
+        Route::parse(if path.is_empty() { "/" } else { path })
+    }
+
+    /// Writes the place into the address, in a new history entry or in the current one. A
+    /// browser that refuses (it limits how often a page may change its address) leaves the
+    /// address as it was; the screen has moved all the same.
+    fn set(route: &Route, new_entry: bool) {
+        let Ok(history) = window().history() else {
+            return;
+        };
+        let url = format!("#{}", route.path());
+        let _ = if new_entry {
+            history.push_state_with_url(&JsValue::NULL, "", Some(&url))
+        } else {
+            history.replace_state_with_url(&JsValue::NULL, "", Some(&url))
+        };
     }
 
     pub fn push(route: &Route) {
-        history().push(route.path());
+        set(route, true);
     }
 
     pub fn replace(route: &Route) {
-        history().replace(route.path());
+        set(route, false);
     }
 
     pub fn back() {
-        history().back();
+        if let Ok(history) = window().history() {
+            let _ = history.back();
+        }
     }
 
-    /// Follows every change of address for as long as the app runs.
+    /// Follows every change of address for as long as the app runs. Pushing and replacing do
+    /// not fire it, so only the back and forward buttons and an edited address arrive here.
     pub fn listen(state: AppState) {
-        let listener = history().listen(move || follow(state));
+        let on_change = Closure::<dyn Fn()>::new(move || follow(state));
+        let _ = window()
+            .add_event_listener_with_callback("popstate", on_change.as_ref().unchecked_ref());
         // The app lives as long as the page: the listener must too.
-        std::mem::forget(listener);
+        on_change.forget();
     }
 }
 
