@@ -8,6 +8,7 @@
 //!
 //! The report names the rule that decided. A 115 V motor on a 120 V circuit is normal on both.
 
+use crate::figures::fixed;
 use crate::loads::{Load, Model, State, LAMP_LIFE_EXPONENT};
 use crate::system::System;
 use serde::Serialize;
@@ -361,99 +362,81 @@ impl std::fmt::Display for Why {
             Why::Off => write!(out, "switched off"),
             Why::OffLive { v } => write!(
                 out,
-                "switched off, but {v:.0} V stands across its switch: its terminals are live and can shock"
-            ),
-            Why::NoVoltage { v } => write!(out, "gets no voltage ({v:.0} V): does not run"),
-            Why::Dark { v, f } => write!(out, "gets {v:.0} V ({:.0} %): dark", f * 100.0),
+                "switched off, but {v} V stands across its switch: its terminals are live and can shock", v = fixed(v, 0)),
+            Why::NoVoltage { v } => write!(out, "gets no voltage ({v} V): does not run", v = fixed(v, 0)),
+            Why::Dark { v, f } => write!(out, "gets {v} V ({} %): dark", fixed(f * 100.0, 0), v = fixed(v, 0)),
             Why::StalledLow { v, f } => write!(
                 out,
-                "gets {v:.0} V ({:.0} %): too low to keep turning; it stalls and draws locked-rotor current until its overload trips",
-                f * 100.0
-            ),
+                "gets {v} V ({} %): too low to keep turning; it stalls and draws locked-rotor current until its overload trips",
+                fixed(f * 100.0, 0), v = fixed(v, 0)),
             Why::StalledFeeble { v } => write!(
                 out,
-                "gets {v:.0} V: far too little to turn; it sits stalled and may hum until the voltage returns or its overload trips"
-            ),
+                "gets {v} V: far too little to turn; it sits stalled and may hum until the voltage returns or its overload trips", v = fixed(v, 0)),
             Why::StalledCollapse { v } => write!(
                 out,
-                "the supply sags too far when it runs, so it stalls (locked-rotor, {v:.0} V) until its overload trips"
-            ),
+                "the supply sags too far when it runs, so it stalls (locked-rotor, {v} V) until its overload trips", v = fixed(v, 0)),
             Why::DroppedLow { v, min_v } => write!(
                 out,
-                "gets {v:.0} V: below its {min_v:.0} V input range, so it shuts off or keeps restarting"
-            ),
+                "gets {v} V: below its {min_v} V input range, so it shuts off or keeps restarting", v = fixed(v, 0), min_v = fixed(min_v, 0)),
             Why::DroppedCollapse { v } => write!(
                 out,
-                "the supply sags too far at its full power, so it shuts off or keeps restarting ({v:.0} V while off)"
-            ),
+                "the supply sags too far at its full power, so it shuts off or keeps restarting ({v} V while off)", v = fixed(v, 0)),
             Why::AboveInput { v, max_v } => write!(
                 out,
-                "gets {v:.0} V: above its {max_v:.0} V input limit; its power supply is likely to fail"
-            ),
+                "gets {v} V: above its {max_v} V input limit; its power supply is likely to fail", v = fixed(v, 0), max_v = fixed(max_v, 0)),
             Why::NearInputEdge { v, min_v, max_v } => write!(
                 out,
-                "gets {v:.0} V: near the edge of its {min_v:.0}–{max_v:.0} V input range"
-            ),
+                "gets {v} V: near the edge of its {min_v}–{max_v} V input range", v = fixed(v, 0), min_v = fixed(min_v, 0), max_v = fixed(max_v, 0)),
             Why::InsideInput { v, min_v, max_v } => write!(
                 out,
-                "gets {v:.0} V: inside its {min_v:.0}–{max_v:.0} V input range"
-            ),
+                "gets {v} V: inside its {min_v}–{max_v} V input range", v = fixed(v, 0), min_v = fixed(min_v, 0), max_v = fixed(max_v, 0)),
             Why::Rated { v, f } => write!(
                 out,
-                "gets {v:.0} V ({:.0} % of its rating): within its tolerance",
-                f * 100.0
-            ),
+                "gets {v} V ({} % of its rating): within its tolerance",
+                fixed(f * 100.0, 0), v = fixed(v, 0)),
             Why::Damage { model, v, f } => match model {
                 Model::Resistive => write!(
                     out,
-                    "gets {v:.0} V ({:.0} % power): its {} overheats and is likely to fail early",
-                    f * f * 100.0,
-                    RESISTIVE.part
-                ),
+                    "gets {v} V ({} % power): its {} overheats and is likely to fail early",
+                    fixed(f * f * 100.0, 0),
+                    RESISTIVE.part, v = fixed(v, 0)),
                 Model::Lamp => write!(
                     out,
-                    "gets {v:.0} V: its {} runs so hot it keeps {} of its life and is likely to burn out soon",
+                    "gets {v} V: its {} runs so hot it keeps {} of its life and is likely to burn out soon",
                     LAMP.part,
-                    life_left(f)
-                ),
+                    life_left(f), v = fixed(v, 0)),
                 _ => write!(
                     out,
-                    "gets {v:.0} V ({:.0} %): its {} is likely to be damaged",
-                    f * 100.0,
-                    tolerance_of(model).part
-                ),
+                    "gets {v} V ({} %): its {} is likely to be damaged",
+                    fixed(f * 100.0, 0),
+                    tolerance_of(model).part, v = fixed(v, 0)),
             },
             Why::Over { model, v, f } => match model {
                 Model::Resistive => write!(
                     out,
-                    "gets {v:.0} V: runs at {:.0} % power and overheats",
-                    f * f * 100.0
-                ),
+                    "gets {v} V: runs at {} % power and overheats",
+                    fixed(f * f * 100.0, 0), v = fixed(v, 0)),
                 Model::Lamp => write!(
                     out,
-                    "gets {v:.0} V: burns brighter with {} of its normal life",
-                    life_left(f)
-                ),
+                    "gets {v} V: burns brighter with {} of its normal life",
+                    life_left(f), v = fixed(v, 0)),
                 _ => write!(
                     out,
-                    "gets {v:.0} V ({:.0} %): over-voltage stresses its {}",
-                    f * 100.0,
-                    tolerance_of(model).part
-                ),
+                    "gets {v} V ({} %): over-voltage stresses its {}",
+                    fixed(f * 100.0, 0),
+                    tolerance_of(model).part, v = fixed(v, 0)),
             },
             Why::Under { model, v, f } => match model {
                 Model::Resistive => write!(
                     out,
-                    "gets {v:.0} V: heats slowly at {:.0} % power",
-                    f * f * 100.0
-                ),
-                Model::Lamp => write!(out, "gets {v:.0} V ({:.0} %): dim", f * 100.0),
+                    "gets {v} V: heats slowly at {} % power",
+                    fixed(f * f * 100.0, 0), v = fixed(v, 0)),
+                Model::Lamp => write!(out, "gets {v} V ({} %): dim", fixed(f * 100.0, 0), v = fixed(v, 0)),
                 Model::Motor => write!(
                     out,
-                    "gets {v:.0} V ({:.0} %): runs slow and hot, drawing extra current",
-                    f * 100.0
-                ),
-                _ => write!(out, "gets {v:.0} V ({:.0} %): under-voltage", f * 100.0),
+                    "gets {v} V ({} %): runs slow and hot, drawing extra current",
+                    fixed(f * 100.0, 0), v = fixed(v, 0)),
+                _ => write!(out, "gets {v} V ({} %): under-voltage", fixed(f * 100.0, 0), v = fixed(v, 0)),
             },
             Why::SystemBand {
                 v,
@@ -466,22 +449,18 @@ impl std::fmt::Display for Why {
                 match band {
                     Band::A => write!(
                         out,
-                        "gets {v:.0} V: within {} Range A for {nominal:.0} V",
-                        standard.name()
-                    ),
+                        "gets {v} V: within {} Range A for {nominal} V",
+                        standard.name(), v = fixed(v, 0), nominal = fixed(nominal, 0)),
                     Band::B if standard == Standard::AnsiC84_1 => write!(
                         out,
-                        "gets {v:.0} V: {side}, within ANSI C84.1 Range B for {nominal:.0} V; the service needs attention"
-                    ),
+                        "gets {v} V: {side}, within ANSI C84.1 Range B for {nominal} V; the service needs attention", v = fixed(v, 0), nominal = fixed(nominal, 0)),
                     Band::B => write!(
                         out,
-                        "gets {v:.0} V: {side}, outside IEC 60038's ±10 % for {nominal:.0} V but within the installation's allowance"
-                    ),
+                        "gets {v} V: {side}, outside IEC 60038's ±10 % for {nominal} V but within the installation's allowance", v = fixed(v, 0), nominal = fixed(nominal, 0)),
                     Band::Outside => write!(
                         out,
-                        "gets {v:.0} V: {side}, outside the {} range for {nominal:.0} V",
-                        standard.name()
-                    ),
+                        "gets {v} V: {side}, outside the {} range for {nominal} V",
+                        standard.name(), v = fixed(v, 0), nominal = fixed(nominal, 0)),
                 }
             }
         }
@@ -494,7 +473,7 @@ fn life_left(f: f64) -> String {
     if pct < 1.0 {
         "less than 1 %".to_string()
     } else {
-        format!("about {pct:.0} %")
+        format!("about {pct} %", pct = fixed(pct, 0))
     }
 }
 

@@ -2,6 +2,7 @@
 //! forgiving file, collects every [`Problem`] with the JSON path of its field, and refuses keys it
 //! does not know, suggesting the nearest known one, so that a typo never changes an answer.
 
+use crate::figures::{fixed, plain};
 use crate::job::Raw;
 use serde_json::Value;
 use std::collections::BTreeMap;
@@ -57,10 +58,10 @@ impl Rule {
 /// A limit written for people: at most four significant figures, no trailing zeros.
 fn round(v: f64) -> String {
     if v == 0.0 || !v.is_finite() {
-        return format!("{v}");
+        return plain(v).to_string();
     }
     let digits = (3 - v.abs().log10().floor() as i32).max(0) as usize;
-    let s = format!("{v:.digits$}");
+    let s = format!("{v}", v = fixed(v, digits));
     if s.contains('.') {
         s.trim_end_matches('0').trim_end_matches('.').to_string()
     } else {
@@ -113,7 +114,7 @@ impl Checker {
         if rule.accepts(v) {
             Some(v)
         } else {
-            self.fail(path, format!("{} (got {v})", rule.message()));
+            self.fail(path, format!("{} (got {})", rule.message(), plain(v)));
             None
         }
     }
@@ -267,7 +268,11 @@ pub fn decimal(text: &str) -> Option<f64> {
         json.push('e');
         json.push_str(e);
     }
-    serde_json::from_str::<f64>(&json).ok()
+    // Read as a JSON value: its reader has no type to refuse, so none of serde's messages for a
+    // wrong type (which print floats with the standard library) is built here.
+    serde_json::from_str::<Value>(&json)
+        .ok()
+        .and_then(|v| v.as_f64())
 }
 
 /// Levenshtein distance between two strings, counted in characters.

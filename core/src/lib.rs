@@ -16,6 +16,7 @@ pub mod classify;
 pub mod conductors;
 pub mod demo;
 pub mod fields;
+pub mod figures;
 pub mod finite;
 pub mod job;
 pub mod library;

@@ -13,6 +13,7 @@
 
 use crate::classify::Outcome;
 use crate::conductors::Material;
+use crate::figures::fixed;
 use crate::loads::Connection;
 use crate::network::Network;
 use crate::report::{load_reports, LoadReport};
@@ -77,22 +78,20 @@ pub fn check(job: &Job, net: &Network, sol: &Solution) -> Vec<MultiwireReport> {
             let overloaded = m.ampacity_a.is_some_and(|a| amps > a);
             let rating = m
                 .ampacity_a
-                .map(|a| format!("{a:.0} A at {:.0} °C", m.column_c))
+                .map(|a| format!("{a} A at {} °C", fixed(m.column_c, 0), a = fixed(a, 0)))
                 .unwrap_or_else(|| "no Table 310.16 rating".to_string());
             let message = match (same_leg, overloaded) {
                 (true, true) => format!(
-                    "DANGER: every hot is on {}, so the shared neutral carries the sum, {amps:.1} A, over its {rating}. With the main off and the panel tested dead, move one hot to another leg and tie the handles.",
-                    legs[0]
-                ),
+                    "DANGER: every hot is on {}, so the shared neutral carries the sum, {amps} A, over its {rating}. With the main off and the panel tested dead, move one hot to another leg and tie the handles.",
+                    legs[0], amps = fixed(amps, 1)),
                 (true, false) => format!(
-                    "WARNING: every hot is on {}: the shared neutral carries the sum ({amps:.1} A, rating {rating}) and no breaker protects it. With the main off and the panel tested dead, move one hot to another leg and tie the handles.",
-                    legs[0]
-                ),
+                    "WARNING: every hot is on {}: the shared neutral carries the sum ({amps} A, rating {rating}) and no breaker protects it. With the main off and the panel tested dead, move one hot to another leg and tie the handles.",
+                    legs[0], amps = fixed(amps, 1)),
                 (false, true) => {
-                    format!("The shared neutral carries {amps:.1} A, over its {rating}.")
+                    format!("The shared neutral carries {amps} A, over its {rating}.", amps = fixed(amps, 1))
                 }
                 (false, false) => {
-                    format!("The shared neutral carries {amps:.1} A (rating {rating}).")
+                    format!("The shared neutral carries {amps} A (rating {rating}).", amps = fixed(amps, 1))
                 }
             };
             let (if_neutral_opens, if_neutral_opens_error) = match if_open(job, net, k, &members) {

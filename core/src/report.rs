@@ -36,6 +36,7 @@
 //! report that would hold anything else.
 
 use crate::classify::{classify, service_band, Context, Decider, Outcome, Standard};
+use crate::figures::fixed;
 use crate::finite::first_non_finite;
 use crate::network::{Network, NEUTRAL_INDEX};
 use crate::solve::{solve, Solution, SolveError};
@@ -368,16 +369,14 @@ pub fn build(job: &Job, net: &Network, sol: &Solution) -> Report {
     }
     if touch {
         notes.push(format!(
-            "DANGER: the panel's neutral bar sits {} from earth, above the {TOUCH_VOLTAGE_LIMIT_V:.0} V touch-voltage limit (IEC 60364-4-41). Bonded metal, pipes and appliance cases can shock: keep people away and treat everything as energized until the neutral is repaired.",
-            shift.map(|v| format!("{v:.0} V")).unwrap_or_else(|| "an unknown voltage".to_string())
-        ));
+            "DANGER: the panel's neutral bar sits {} from earth, above the {TOUCH_VOLTAGE_LIMIT_V} V touch-voltage limit (IEC 60364-4-41). Bonded metal, pipes and appliance cases can shock: keep people away and treat everything as energized until the neutral is repaired.",
+            shift.map(|v| format!("{v} V", v = fixed(v, 0))).unwrap_or_else(|| "an unknown voltage".to_string()), TOUCH_VOLTAGE_LIMIT_V = fixed(TOUCH_VOLTAGE_LIMIT_V, 0)));
     }
     let earth_rms = sol.earth_rms();
     if earth_rms > 0.0 && !matches!(job.neutral(), NeutralState::Intact) {
         notes.push(format!(
-            "{earth_rms:.1} A returns through the grounding electrode and the earth beside the neutral conductor's {:.1} A; touching the neutral or grounding conductors can be dangerous.",
-            sol.neutral_rms()
-        ));
+            "{earth_rms} A returns through the grounding electrode and the earth beside the neutral conductor's {} A; touching the neutral or grounding conductors can be dangerous.",
+            fixed(sol.neutral_rms(), 1), earth_rms = fixed(earth_rms, 1)));
     }
     if matches!(job.neutral(), NeutralState::Loose { .. }) {
         notes.push("A loose neutral is urgent to repair, even while every appliance is still within its range: the connection heats and gets worse.".to_string());

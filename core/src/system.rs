@@ -5,6 +5,7 @@
 //! Currents are positive flowing from the source into the panel on a hot leg, and from the panel
 //! back towards the source on the neutral.
 
+use crate::figures::fixed;
 use num_complex::Complex64;
 use std::f64::consts::PI;
 
@@ -143,8 +144,14 @@ impl System {
         let v = self.volts_to_neutral;
         let ll = self.volts_line_to_line();
         match self.kind {
-            SystemKind::SplitPhase => format!("{v:.0}/{ll:.0} V split-phase"),
-            SystemKind::Wye { phases } => format!("{v:.0}/{ll:.0} V wye, {phases} phases"),
+            SystemKind::SplitPhase => {
+                format!("{v}/{ll} V split-phase", v = fixed(v, 0), ll = fixed(ll, 0))
+            }
+            SystemKind::Wye { phases } => format!(
+                "{v}/{ll} V wye, {phases} phases",
+                v = fixed(v, 0),
+                ll = fixed(ll, 0)
+            ),
         }
     }
 }

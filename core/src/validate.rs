@@ -13,6 +13,7 @@
 
 use crate::conductors::{Conductor, Conduit, Material, Size, FEET_PER_METRE};
 use crate::fields::{Checker, Rule};
+use crate::figures::plain;
 use crate::job::{ConductorFile, JobFile, LoadFile, NeutralFile, Raw, SystemFile, JOB_VERSION};
 use crate::loads::{
     Connection, Load, LockedRotor, LockedRotorBasis, Model, CODE_LETTERS, ELECTRONIC_DEFAULT_RANGE,
@@ -366,7 +367,7 @@ fn validate_transformer(
         if s < 0.5 * p || s > 1.5 * p {
             c.fail(
                 "transformer.supply_v",
-                format!("must be within 50 % of primary_v ({p} V)"),
+                format!("must be within 50 % of primary_v ({} V)", plain(p)),
             );
             return None;
         }
@@ -375,7 +376,7 @@ fn validate_transformer(
                 "transformer.primary_v",
                 format!(
                     "must be above the secondary's {} V",
-                    system.volts_line_to_line()
+                    plain(system.volts_line_to_line())
                 ),
             );
             return None;
@@ -834,7 +835,7 @@ fn validate_load(
                 (Some(_), Some(_)) => {
                     c.fail(
                         &p("input_min_v"),
-                        format!("the input range must contain rated_v ({vr} V)"),
+                        format!("the input range must contain rated_v ({} V)", plain(vr)),
                     );
                     None
                 }

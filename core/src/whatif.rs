@@ -2,6 +2,7 @@
 //! resistance from 0 to open for a plot of every appliance's voltage.
 
 use crate::classify::{classify, Context, Outcome};
+use crate::figures::fixed;
 use crate::network::Network;
 use crate::report::{build, checked, Report};
 use crate::solve::{magnitude, solve, solve_fundamental_each, SolveError};
@@ -145,13 +146,13 @@ pub fn sweep_csv(s: &Sweep) -> String {
     out.push('\n');
     for (k, p) in s.neutral_ohms.iter().enumerate() {
         match p {
-            Some(r) => out.push_str(&format!("{r:.6}")),
+            Some(r) => out.push_str(&format!("{r}", r = fixed(*r, 6))),
             None => out.push_str("open"),
         }
         for l in &s.loads {
             out.push(',');
             if let Some(v) = l.volts[k] {
-                out.push_str(&format!("{v:.3}"));
+                out.push_str(&format!("{v}", v = fixed(v, 3)));
             }
         }
         out.push('\n');

@@ -8,6 +8,7 @@ pub mod ampacity;
 pub mod drop;
 pub mod tables;
 
+use crate::figures::plain;
 use num_complex::Complex64;
 use tables::{AwgRow, MetricRow, AWG_TABLE, METRIC_TABLE, METRIC_X_OHM_PER_KM_50HZ};
 
@@ -124,7 +125,7 @@ impl Size {
     pub fn code(self) -> String {
         match self {
             Size::Awg(r) => r.size.to_string(),
-            Size::Metric(r) => format!("{} mm2", r.mm2),
+            Size::Metric(r) => format!("{} mm2", plain(r.mm2)),
         }
     }
 
@@ -133,7 +134,7 @@ impl Size {
         match self {
             Size::Awg(r) if r.cmil >= 250_000.0 => format!("{} kcmil", r.size),
             Size::Awg(r) => format!("{} AWG", r.size),
-            Size::Metric(r) => format!("{} mm²", r.mm2),
+            Size::Metric(r) => format!("{} mm²", plain(r.mm2)),
         }
     }
 

@@ -22,6 +22,7 @@
 //! 1e-7 A; a second finds, among every arrangement within [`TOLERANCE_A`] of it, the one with the
 //! fewest moves.
 
+use crate::figures::fixed;
 use crate::loads::{Connection, Model};
 use crate::system::{Leg, System, SystemKind};
 use crate::validated::Job;
@@ -853,9 +854,8 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
     }
     if least_gap > TOLERANCE_A / 2.0 {
         notes.push(format!(
-            "This panel has more arrangements than the search could finish in time: the answer is proven within {:.2} A of the least neutral current possible.",
-            least_gap + TOLERANCE_A
-        ));
+            "This panel has more arrangements than the search could finish in time: the answer is proven within {} A of the least neutral current possible.",
+            fixed(least_gap + TOLERANCE_A, 2)));
     }
     if !proved {
         notes.push(

@@ -22,6 +22,7 @@
 //! supply explains is reported as such, not as a verdict.
 
 use crate::fields::{Checker, Problem, Rule};
+use crate::figures::{fixed, plain};
 use crate::job::{file_form, FromJson, JobFile, Raw, SystemFile};
 pub use crate::job::{MeterFile, ReadingFile, ReadingSetFile};
 use crate::system::SystemKind;
@@ -371,7 +372,7 @@ fn check_readings(
             if spread(|r| r.i1).max(spread(|r| r.i2)) < MIN_CURRENT_CHANGE_A {
                 c.fail(
                     &list_path,
-                    format!("the readings at the {name} show no change in leg current: switch a known load on one leg (at least {MIN_CURRENT_CHANGE_A} A) between readings"),
+                    format!("the readings at the {name} show no change in leg current: switch a known load on one leg (at least {} A) between readings", plain(MIN_CURRENT_CHANGE_A)),
                 );
             }
         }
@@ -477,21 +478,27 @@ fn compare(sets: &[SetOutcome]) -> Option<String> {
     let change = d1.neutral_ohms - d0.neutral_ohms;
     let bound = d0.neutral_ohms_uncertainty + d1.neutral_ohms_uncertainty;
     let verdict = if change.abs() <= bound {
-        format!("no change beyond the readings' uncertainty (±{bound:.3} Ω)")
+        format!(
+            "no change beyond the readings' uncertainty (±{bound} Ω)",
+            bound = fixed(bound, 3)
+        )
     } else if change < 0.0 {
-        format!("{:.3} Ω less", -change)
+        format!("{} Ω less", fixed(-change, 3))
     } else {
-        format!("{change:.3} Ω more: the connection is getting worse")
+        format!(
+            "{change} Ω more: the connection is getting worse",
+            change = fixed(change, 3)
+        )
     };
     Some(format!(
-        "First test ({}): neutral {:.3} ± {:.3} Ω, {}. Latest ({}): {:.3} ± {:.3} Ω, {}. That is {verdict}.",
+        "First test ({}): neutral {} ± {} Ω, {}. Latest ({}): {} ± {} Ω, {}. That is {verdict}.",
         when(s0),
-        d0.neutral_ohms,
-        d0.neutral_ohms_uncertainty,
+        fixed(d0.neutral_ohms, 3),
+        fixed(d0.neutral_ohms_uncertainty, 3),
         d0.verdict.word(),
         when(s1),
-        d1.neutral_ohms,
-        d1.neutral_ohms_uncertainty,
+        fixed(d1.neutral_ohms, 3),
+        fixed(d1.neutral_ohms_uncertainty, 3),
         d1.verdict.word(),
     ))
 }
@@ -779,7 +786,7 @@ pub fn verdict_for(ohms: f64, uncertainty: f64) -> (Verdict, String) {
     };
     (
         v,
-        format!("neutral {ohms:.3} Ω ± {uncertainty:.3} Ω moves the neutral about {shift:.1} V per 10 A of imbalance: {what}"),
+        format!("neutral {ohms} Ω ± {uncertainty} Ω moves the neutral about {shift} V per 10 A of imbalance: {what}", ohms = fixed(ohms, 3), uncertainty = fixed(uncertainty, 3), shift = fixed(shift, 1)),
     )
 }
 
@@ -847,15 +854,15 @@ pub fn diagnose(r: &Readings) -> Result<Diagnosis, DiagnoseError> {
         {
             verdict = Verdict::NotPhysical;
             reason = format!(
-                "the readings scatter by {:.2} V around the best fit, far more than the meters' {:.2} V: the supply voltage probably changed between readings; take them again in quick succession",
-                f.residual_rms_v, f.meter_noise_v
-            );
+                "the readings scatter by {} V around the best fit, far more than the meters' {} V: the supply voltage probably changed between readings; take them again in quick succession",
+                fixed(f.residual_rms_v, 2), fixed(f.meter_noise_v, 2));
         }
     }
     if verdict != neutral_verdict && verdict != Verdict::NotPhysical {
         reason.push_str(&format!(
-            "; each hot {:.3} Ω ± {:.3} Ω",
-            main.hot_ohms, main.hot_ohms_uncertainty
+            "; each hot {} Ω ± {} Ω",
+            fixed(main.hot_ohms, 3),
+            fixed(main.hot_ohms_uncertainty, 3)
         ));
     }
     let settle_with_test_load_a = (verdict == Verdict::Inconclusive)
@@ -863,9 +870,8 @@ pub fn diagnose(r: &Readings) -> Result<Diagnosis, DiagnoseError> {
         .flatten();
     if let Some(a) = settle_with_test_load_a {
         reason.push_str(&format!(
-            "; a resistive test load changing one leg's current by about {a:.0} A (a {:.0} W heater at 120 V) would settle it",
-            a * 120.0
-        ));
+            "; a resistive test load changing one leg's current by about {a} A (a {} W heater at 120 V) would settle it",
+            fixed(a * 120.0, 0), a = fixed(a, 0)));
     }
     let (likely_location, location_reason) = match (&at_meter, &at_panel) {
         (Some(m), Some(p)) => {
@@ -876,12 +882,12 @@ pub fn diagnose(r: &Readings) -> Result<Diagnosis, DiagnoseError> {
             } else if m.neutral_ohms > building {
                 (
                     "utility side",
-                    format!("{:.3} Ω of the neutral's {:.3} Ω is before the meter (transformer, service drop, meter base): call the utility", m.neutral_ohms, p.neutral_ohms),
+                    format!("{} Ω of the neutral's {} Ω is before the meter (transformer, service drop, meter base): call the utility", fixed(m.neutral_ohms, 3), fixed(p.neutral_ohms, 3)),
                 )
             } else {
                 (
                     "building side",
-                    format!("{building:.3} Ω of the neutral's {:.3} Ω is between the meter and the panel (service entrance conductors, panel neutral bar)", p.neutral_ohms),
+                    format!("{building} Ω of the neutral's {} Ω is between the meter and the panel (service entrance conductors, panel neutral bar)", fixed(p.neutral_ohms, 3), building = fixed(building, 3)),
                 )
             }
         }

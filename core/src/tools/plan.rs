@@ -10,6 +10,7 @@
 //! planning asks), and how far each leg sits below nominal at the panel.
 
 use crate::classify::Outcome;
+use crate::figures::fixed;
 use crate::report::{analyze, Report};
 use crate::solve::SolveError;
 use crate::transformer::Faults;
@@ -114,9 +115,8 @@ pub fn plan(job: &Job) -> Result<Plan, SolveError> {
     if let Some(t) = &after.transformer {
         if t.loading_pct > 100.0 {
             notes.push(format!(
-                "With the planned appliances the transformer carries {:.0} % of its full-load current: tell the utility before adding them.",
-                t.loading_pct
-            ));
+                "With the planned appliances the transformer carries {} % of its full-load current: tell the utility before adding them.",
+                fixed(t.loading_pct, 0)));
         }
     }
     Ok(Plan {

@@ -31,6 +31,7 @@ use crate::conductors::ampacity::ampacity;
 use crate::conductors::drop::approximate_drop;
 use crate::conductors::{Conductor, Conduit, Material, Size, FEET_PER_METRE};
 use crate::fields::{Checker, Problem, Rule};
+use crate::figures::{fixed, plain};
 use crate::job::{file_form, FromJson, Raw, SystemFile};
 use crate::system::SystemKind;
 use crate::validate::validate_system;
@@ -407,8 +408,8 @@ pub fn size(run: &Run) -> Sizing {
         .find(|c| c.meets_drop && c.meets_ampacity != Some(false))
         .map(|c| c.size.clone());
     let mut notes = vec![format!(
-        "Drop target {} % of {:.0} V ({}); the NEC's informational notes suggest 3 % for a branch circuit and 5 % for feeder and branch together.",
-        run.target_pct, run.circuit_v, run.kind
+        "Drop target {} % of {} V ({}); the NEC's informational notes suggest 3 % for a branch circuit and 5 % for feeder and branch together.",
+        plain(run.target_pct), fixed(run.circuit_v, 0), run.kind
     )];
     if run.metric {
         notes.push("Metric sizes carry no NEC Table 310.16 ampacity: check the current-carrying capacity under the local rules (IEC 60364-5-52).".to_string());

@@ -7,6 +7,7 @@
 //! A loose neutral makes the dip worse on the motor's own leg and raises the other leg: the usual
 //! first symptom of a loose neutral is "the lights dim when the air conditioner starts".
 
+use crate::figures::{fixed, plain};
 use crate::loads::{LockedRotorBasis, Model};
 use crate::network::Network;
 use crate::solve::{solve_fundamental, SolveError};
@@ -172,7 +173,7 @@ pub fn start(job: &Job, name: &str, starts_per_hour: f64) -> Result<Start, Start
             .iter()
             .any(|a| a.dip_pct.is_some_and(|p| p < 0.0))
         {
-            notes.push(format!("While it starts one leg dips by up to {worst:.1} % and the other rises: the neutral shifts, so the dip is worse than the service alone explains. Check the neutral."));
+            notes.push(format!("While it starts one leg dips by up to {worst} % and the other rises: the neutral shifts, so the dip is worse than the service alone explains. Check the neutral.", worst = fixed(worst, 1)));
         }
     }
     if !can_start {
@@ -185,9 +186,12 @@ pub fn start(job: &Job, name: &str, starts_per_hour: f64) -> Result<Start, Start
         locked_rotor_basis: match lr.basis {
             LockedRotorBasis::Given => "given".to_string(),
             LockedRotorBasis::CodeLetter { letter, hp } => {
-                format!("code letter {letter}, {hp} hp (NEC Table 430.7(B), top of the range)")
+                format!(
+                    "code letter {letter}, {hp} hp (NEC Table 430.7(B), top of the range)",
+                    hp = plain(hp)
+                )
             }
-            LockedRotorBasis::Multiple(m) => format!("{m} × running current"),
+            LockedRotorBasis::Multiple(m) => format!("{} × running current", plain(m)),
         },
         start_pf: lr.power_factor,
         motor_v,
