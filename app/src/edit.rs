@@ -5,6 +5,7 @@
 use serde_json::Value;
 use tapline_core::conductors::FEET_PER_METRE;
 use tapline_core::fields::decimal;
+use tapline_core::figures::fixed;
 use tapline_core::job::{
     ConductorFile, JobFile, LoadFile, MultiwireFile, NeutralFile, Raw, SystemFile, TransformerFile,
     JOB_VERSION,
@@ -63,7 +64,7 @@ pub fn text_of_number(raw: &Raw<f64>) -> String {
 
 /// A float as short text: no trailing zeros, at most 6 decimals.
 pub fn trim_float(v: f64) -> String {
-    let s = format!("{v:.6}");
+    let s = format!("{v}", v = fixed(v, 6));
     let s = s.trim_end_matches('0').trim_end_matches('.');
     if s == "-0" {
         "0".to_string()

@@ -19,18 +19,18 @@ pub fn outcome_symbol(o: tapline_core::classify::Outcome) -> &'static str {
 
 /// Volts with one decimal, or a dash when undefined.
 pub fn volts(v: Option<f64>) -> String {
-    v.map(|v| format!("{v:.1} V"))
+    v.map(|v| format!("{v} V", v = fixed(v, 1)))
         .unwrap_or_else(|| "—".to_string())
 }
 
 /// Amperes with one decimal.
 pub fn amps(a: f64) -> String {
-    format!("{a:.1} A")
+    format!("{a} A", a = fixed(a, 1))
 }
 
 /// A percentage with no decimals, or a dash.
 pub fn pct(p: Option<f64>) -> String {
-    p.map(|p| format!("{p:.0} %"))
+    p.map(|p| format!("{p} %", p = fixed(p, 0)))
         .unwrap_or_else(|| "—".to_string())
 }
 
@@ -39,8 +39,8 @@ pub fn pct(p: Option<f64>) -> String {
 pub fn below_nominal(drop_v: Option<f64>) -> String {
     match drop_v {
         None => "—".to_string(),
-        Some(d) if d < -0.05 => format!("{:.1} V above", -d),
-        Some(d) => format!("{:.1} V", d.max(0.0)),
+        Some(d) if d < -0.05 => format!("{} V above", fixed(-d, 1)),
+        Some(d) => format!("{} V", fixed(d.max(0.0), 1)),
     }
 }
 
@@ -133,12 +133,19 @@ pub fn group_total(report: &Report, group: &str) -> String {
         .get(group)
         .map(|l| format!(" · leg now {}", amps(l.current_a)))
         .unwrap_or_default();
-    format!("{watts:.0} W rated on{leg}")
+    format!("{watts} W rated on{leg}", watts = fixed(watts, 0))
+}
+
+/// A coordinate or length of a drawing as its SVG attribute: the fewest digits that read back to
+/// it (tachys would print an f64 attribute with the standard library's float printing, which the
+/// app leaves out; see `tapline_core::figures`).
+pub fn coord(v: f64) -> String {
+    tapline_core::figures::plain(v).to_string()
 }
 
 /// A plain number with a fixed number of decimals.
 pub fn fixed(v: f64, decimals: usize) -> String {
-    format!("{v:.decimals$}")
+    tapline_core::figures::fixed(v, decimals).to_string()
 }
 
 /// The one-line status shown for a job in the list: the neutral as found when it is not intact,
@@ -147,10 +154,13 @@ pub fn fixed(v: f64, decimals: usize) -> String {
 pub fn status_line(found: NeutralState, now: &Report, if_open: Option<&Report>) -> String {
     let mut s = match found {
         NeutralState::Intact => String::new(),
-        NeutralState::Loose { ohms } => format!("neutral found loose ({ohms} Ω) · "),
+        NeutralState::Loose { ohms } => format!(
+            "neutral found loose ({} Ω) · ",
+            tapline_core::figures::plain(ohms)
+        ),
         NeutralState::Open => "neutral found open · ".to_string(),
     };
-    s.push_str(&format!("neutral {:.0} A", now.neutral_current_a));
+    s.push_str(&format!("neutral {} A", fixed(now.neutral_current_a, 0)));
     if let Some(open) = if_open {
         let worst = open
             .loads
@@ -161,9 +171,9 @@ pub fn status_line(found: NeutralState, now: &Report, if_open: Option<&Report>) 
         if let Some((l, p)) = worst {
             if p > 110.0 {
                 s.push_str(&format!(
-                    " · if it opens: {} gets {:.0} V",
+                    " · if it opens: {} gets {} V",
                     l.name,
-                    l.voltage_v.unwrap_or(0.0)
+                    fixed(l.voltage_v.unwrap_or(0.0), 0)
                 ));
             } else {
                 s.push_str(" · if it opens: no appliance over 110 %");

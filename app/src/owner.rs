@@ -6,6 +6,7 @@ use crate::edit::neutral::Explore;
 use crate::format;
 use crate::messages::Catalogue;
 use tapline_core::classify::Outcome;
+use tapline_core::figures::fixed;
 use tapline_core::report::Report;
 use tapline_core::tools::diagnose::{Diagnosis, Verdict};
 
@@ -38,7 +39,7 @@ fn appliance_line(cat: Catalogue, l: &tapline_core::report::LoadReport) -> Strin
             &[
                 ("name", &l.name),
                 ("volts", &format::volts(Some(v))),
-                ("pct", &format!("{p:.0} %")),
+                ("pct", &format!("{p} %", p = fixed(p, 0))),
                 ("outcome", cat.get(&format!("outcome.{}", l.outcome.code()))),
             ],
         ),
@@ -131,8 +132,8 @@ pub fn summary(
                 "owner.measured",
                 &[
                     ("taken", taken),
-                    ("ohms", &format!("{:.3}", d.neutral_ohms)),
-                    ("unc", &format!("{:.3}", d.neutral_ohms_uncertainty)),
+                    ("ohms", &format!("{}", fixed(d.neutral_ohms, 3))),
+                    ("unc", &format!("{}", fixed(d.neutral_ohms_uncertainty, 3))),
                     ("verdict", cat.get(&format!("verdict.{}", d.verdict.code()))),
                 ],
             )

@@ -10,6 +10,7 @@
 //! a dash pattern of its own, and a readout gives every appliance's figure at any point.
 
 use tapline_core::classify::ansi;
+use tapline_core::figures::fixed;
 use tapline_core::whatif::Sweep;
 
 /// Drawing size in SVG user units (the SVG scales to the screen width).
@@ -73,9 +74,9 @@ pub fn readout(sweep: &Sweep, k: usize) -> Readout {
     let ohms = match sweep.neutral_ohms.get(k).copied().flatten() {
         None => "open".to_string(),
         Some(0.0) => "0 Ω (solid)".to_string(),
-        Some(o) if o < 1.0 => format!("{o:.2} Ω"),
-        Some(o) if o < 100.0 => format!("{o:.1} Ω"),
-        Some(o) => format!("{o:.0} Ω"),
+        Some(o) if o < 1.0 => format!("{o} Ω", o = fixed(o, 2)),
+        Some(o) if o < 100.0 => format!("{o} Ω", o = fixed(o, 1)),
+        Some(o) => format!("{o} Ω", o = fixed(o, 0)),
     };
     Readout {
         ohms,
@@ -198,7 +199,7 @@ pub fn layout(sweep: &Sweep, marker_ohms: Option<Option<f64>>) -> Plot {
                     Some(v) => {
                         let cmd = if pen_down { 'L' } else { 'M' };
                         let (x, y) = (x_of(k, n), y_of(v / first.rated_v * 100.0));
-                        path.push_str(&format!("{cmd}{x:.1} {y:.1} "));
+                        path.push_str(&format!("{cmd}{x} {y} ", x = fixed(x, 1), y = fixed(y, 1)));
                         pen_down = true;
                         end = Some((x, y));
                     }
@@ -237,7 +238,7 @@ pub fn layout(sweep: &Sweep, marker_ohms: Option<Option<f64>>) -> Plot {
         .iter()
         .map(|p| Tick {
             pos: y_of(*p),
-            label: format!("{p:.0}%"),
+            label: format!("{p}%", p = fixed(*p, 0)),
         })
         .collect();
     let marker_x = marker_ohms.map(|m| match m {

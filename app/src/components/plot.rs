@@ -1,5 +1,6 @@
 //! The neutral sweep plot, drawn from [`crate::plot::Plot`], with its readout.
 
+use crate::format::coord;
 use crate::plot::{Plot, Readout, HEIGHT, WIDTH};
 use leptos::prelude::*;
 use wasm_bindgen::JsCast;
@@ -14,7 +15,11 @@ pub const PALETTE: [&str; 8] = [
 /// read out.
 #[component]
 pub fn SweepPlot(plot: Plot, point: RwSignal<Option<usize>>, points: usize) -> impl IntoView {
-    let view_box = format!("0 0 {WIDTH} {HEIGHT}");
+    let view_box = format!(
+        "0 0 {} {}",
+        tapline_core::figures::plain(WIDTH),
+        tapline_core::figures::plain(HEIGHT)
+    );
     let (l, r, t, b) = (
         plot.plot_left,
         plot.plot_right,
@@ -24,7 +29,7 @@ pub fn SweepPlot(plot: Plot, point: RwSignal<Option<usize>>, points: usize) -> i
     let bands = plot
         .bands
         .iter()
-        .map(|band| view! { <rect class=band.class x=l y=band.y width=r - l height=band.height><title>{band.label}</title></rect> })
+        .map(|band| view! { <rect class=band.class x=coord(l) y=coord(band.y) width=coord(r - l) height=coord(band.height)><title>{band.label}</title></rect> })
         .collect_view();
     let lines = plot
         .lines
@@ -32,7 +37,7 @@ pub fn SweepPlot(plot: Plot, point: RwSignal<Option<usize>>, points: usize) -> i
         .map(|line| {
             let colour = PALETTE[line.series % PALETTE.len()];
             let label = line.end.map(|(x, y)| {
-                view! { <text class="end-label" x=x + 3.0 y=y + 4.0 fill=colour>{line.label.clone()}</text> }
+                view! { <text class="end-label" x=coord(x + 3.0) y=coord(y + 4.0) fill=colour>{line.label.clone()}</text> }
             });
             view! {
                 <path d=line.path.clone() stroke=colour stroke-dasharray=line.dash() fill="none" stroke-width="2.5"><title>{line.names.join(", ")}</title></path>
@@ -48,21 +53,21 @@ pub fn SweepPlot(plot: Plot, point: RwSignal<Option<usize>>, points: usize) -> i
         .map(|(k, tick)| {
             // Keep the end labels inside the drawing.
             let anchor = if k == 0 { "start" } else if k == last { "end" } else { "middle" };
-            view! { <text class="tick" x=tick.pos y=b + 18.0 text-anchor=anchor>{tick.label.clone()}</text> }
+            view! { <text class="tick" x=coord(tick.pos) y=coord(b + 18.0) text-anchor=anchor>{tick.label.clone()}</text> }
         })
         .collect_view();
     let y_ticks = plot
         .y_ticks
         .iter()
-        .map(|tick| view! { <text class="tick" x=l - 4.0 y=tick.pos + 4.0 text-anchor="end">{tick.label.clone()}</text> })
+        .map(|tick| view! { <text class="tick" x=coord(l - 4.0) y=coord(tick.pos + 4.0) text-anchor="end">{tick.label.clone()}</text> })
         .collect_view();
     let marker = plot
         .marker_x
-        .map(|x| view! { <line class="marker" x1=x x2=x y1=t y2=b /> });
+        .map(|x| view! { <line class="marker" x1=coord(x) x2=coord(x) y1=coord(t) y2=coord(b) /> });
     let cursor = move || {
         point.get().map(|k| {
             let x = crate::plot::x_at(k, points);
-            view! { <line class="cursor" x1=x x2=x y1=t y2=b /> }
+            view! { <line class="cursor" x1=coord(x) x2=coord(x) y1=coord(t) y2=coord(b) /> }
         })
     };
     let legend = plot
@@ -104,7 +109,7 @@ pub fn SweepPlot(plot: Plot, point: RwSignal<Option<usize>>, points: usize) -> i
             <svg viewBox=view_box role="img" aria-label="Appliance voltage as a percentage of rating against neutral resistance"
                 on:pointerdown=pick on:pointermove=drag>
                 {bands}
-                <rect class="frame" x=l y=t width=r - l height=b - t fill="none" />
+                <rect class="frame" x=coord(l) y=coord(t) width=coord(r - l) height=coord(b - t) fill="none" />
                 {lines}
                 {marker}
                 {cursor}

@@ -4,6 +4,7 @@
 //! behind when printed.
 
 use crate::edit::neutral::Explore;
+use crate::format::coord;
 use crate::messages::{Catalogue, LANGS};
 use crate::owner::{self, Drawing};
 use crate::state::{AppState, Explored};
@@ -156,7 +157,11 @@ fn ServiceDrawing(
 ) -> impl IntoView {
     let state = expect_context::<AppState>();
     let d = drawing;
-    let view_box = format!("0 0 {} {}", d.width, d.height);
+    let view_box = format!(
+        "0 0 {} {}",
+        tapline_core::figures::plain(d.width),
+        tapline_core::figures::plain(d.height)
+    );
     let bottom = d.height - 6.0;
     let top = d.top;
     let nx = d.neutral_x;
@@ -169,8 +174,8 @@ fn ServiceDrawing(
             let start = if b.label == "N" { top + 16.0 } else { top };
             view! {
                 <g data-testid=if b.label == "N" { "diagram-neutral" } else { "diagram-leg" } data-leg=b.label.clone()>
-                    <line class=class x1=b.x y1=start x2=b.x y2=bottom />
-                    <text class="wire-label" x=b.x y=top - 8.0 text-anchor="middle">{format!("{} {}", b.label, b.current)}</text>
+                    <line class=class x1=coord(b.x) y1=coord(start) x2=coord(b.x) y2=coord(bottom) />
+                    <text class="wire-label" x=coord(b.x) y=coord(top - 8.0) text-anchor="middle">{format!("{} {}", b.label, b.current)}</text>
                 </g>
             }
         })
@@ -186,27 +191,27 @@ fn ServiceDrawing(
         xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max).max(nx),
     );
     let winding = view! {
-        <rect class="winding" x=lo - 6.0 y="4" width=hi - lo + 12.0 height="22" rx="11" />
-        <text class="winding-label" x=(lo + hi) / 2.0 y="19" text-anchor="middle">{cat.get("diagram.transformer")}</text>
+        <rect class="winding" x=coord(lo - 6.0) y="4" width=coord(hi - lo + 12.0) height="22" rx="11" />
+        <text class="winding-label" x=coord((lo + hi) / 2.0) y="19" text-anchor="middle">{cat.get("diagram.transformer")}</text>
     };
     let neutral_link = match d.neutral {
         "open" => view! {
             <g class="neutral-open" data-testid="diagram-neutral-open">
-                <line class="wire wire-N" x1=nx y1="26" x2=nx y2=top - 18.0 />
-                <text class="break-mark" x=nx y=top + 2.0 text-anchor="middle">"✕"</text>
-                <text class="break-label" x=nx + 12.0 y=top + 2.0>{cat.get("diagram.open")}</text>
+                <line class="wire wire-N" x1=coord(nx) y1="26" x2=coord(nx) y2=coord(top - 18.0) />
+                <text class="break-mark" x=coord(nx) y=coord(top + 2.0) text-anchor="middle">"✕"</text>
+                <text class="break-label" x=coord(nx + 12.0) y=coord(top + 2.0)>{cat.get("diagram.open")}</text>
             </g>
         }
         .into_any(),
         "loose" => view! {
             <g class="neutral-loose">
-                <line class="wire wire-N" x1=nx y1="26" x2=nx y2=top + 16.0 />
-                <path class="resistor" d=format!("M{nx} {} l6 3 l-12 6 l12 6 l-12 6 l6 3", top - 16.0) />
-                <text class="break-label" x=nx + 12.0 y=top>{cat.fill("diagram.loose", &[("ohms", &d.neutral_ohms.map(|o| format!("{o}")).unwrap_or_default())])}</text>
+                <line class="wire wire-N" x1=coord(nx) y1="26" x2=coord(nx) y2=coord(top + 16.0) />
+                <path class="resistor" d=format!("M{} {} l6 3 l-12 6 l12 6 l-12 6 l6 3", tapline_core::figures::plain(nx), tapline_core::figures::plain(top - 16.0)) />
+                <text class="break-label" x=coord(nx + 12.0) y=coord(top)>{cat.fill("diagram.loose", &[("ohms", &d.neutral_ohms.map(|o| tapline_core::figures::plain(o).to_string()).unwrap_or_default())])}</text>
             </g>
         }
         .into_any(),
-        _ => view! { <line class="wire wire-N" x1=nx y1="26" x2=nx y2=top + 16.0 /> }.into_any(),
+        _ => view! { <line class="wire wire-N" x1=coord(nx) y1="26" x2=coord(nx) y2=coord(top + 16.0) /> }.into_any(),
     };
     let boxes = d
         .items
@@ -221,11 +226,11 @@ fn ServiceDrawing(
             view! {
                 <g class="diagram-appliance" class:series=it.series data-testid="diagram-appliance" data-outcome=it.outcome.code() data-connect=it.connect.clone()
                     role="button" tabindex="0" aria-label=it.name.clone() on:click=move |_| selected.set(Some(i))>
-                    <line class="stub" x1=it.from_x y1=it.y + 20.0 x2=x y2=it.y + 20.0 />
-                    <line class="stub" x1=x + w y1=it.y + 20.0 x2=it.to_x y2=it.y + 20.0 />
-                    <rect class=class x=x y=it.y width=w height="40" rx="6" />
-                    <text class="box-name" x=x + 5.0 y=it.y + 16.0>{name}</text>
-                    <text class="box-figure" x=x + 5.0 y=it.y + 33.0>{format!("{} {} {}", it.volts, crate::format::outcome_symbol(it.outcome), short)}</text>
+                    <line class="stub" x1=coord(it.from_x) y1=coord(it.y + 20.0) x2=coord(x) y2=coord(it.y + 20.0) />
+                    <line class="stub" x1=coord(x + w) y1=coord(it.y + 20.0) x2=coord(it.to_x) y2=coord(it.y + 20.0) />
+                    <rect class=class x=coord(x) y=coord(it.y) width=coord(w) height="40" rx="6" />
+                    <text class="box-name" x=coord(x + 5.0) y=coord(it.y + 16.0)>{name}</text>
+                    <text class="box-figure" x=coord(x + 5.0) y=coord(it.y + 33.0)>{format!("{} {} {}", it.volts, crate::format::outcome_symbol(it.outcome), short)}</text>
                 </g>
             }
         })

@@ -7,6 +7,7 @@ use crate::format;
 use crate::state::AppState;
 use leptos::prelude::*;
 use std::collections::BTreeMap;
+use tapline_core::figures::fixed;
 use tapline_core::tools::balance::{Layout, Row};
 
 fn legs_line(legs: &BTreeMap<String, f64>) -> String {
@@ -105,7 +106,7 @@ fn ScheduleLine(row: Row) -> impl IntoView {
                     <span class="pos">{positions}</span>
                     <span class=chip>{row.leg.clone()}</span>
                     <span class="what">{row.appliances.join(", ")}</span>
-                    <span class="watts">{format!("{:.0} W", row.watts)}</span>
+                    <span class="watts">{format!("{} W", fixed(row.watts, 0))}</span>
                     <span class="tags" data-testid="schedule-tags">{tags.join(" · ")}</span>
                     <span class="after" data-testid="schedule-after">{after}</span>
                 </summary>
@@ -284,7 +285,7 @@ fn Balancing() -> impl IntoView {
                         <p>{legs_line(&b.after.legs)}</p>
                     </div>
                 </div>
-                <p class="note">{format!("The best arrangement within {:.2} A, with the fewest moves. 240 V circuits and circuits marked to stay are not moved; a shared-neutral circuit moves as one handle-tied breaker.", b.within_a)}</p>
+                <p class="note">{format!("The best arrangement within {} A, with the fewest moves. 240 V circuits and circuits marked to stay are not moved; a shared-neutral circuit moves as one handle-tied breaker.", fixed(b.within_a, 2))}</p>
                 {if none {
                     view! { <p data-testid="no-moves">"This panel is already as balanced as its movable circuits allow."</p> }.into_any()
                 } else {

@@ -4,6 +4,7 @@ use crate::components::OutcomeBadge;
 use crate::format;
 use crate::state::AppState;
 use leptos::prelude::*;
+use tapline_core::figures::fixed;
 use tapline_core::report::Report;
 
 /// The list of field problems, shown instead of results while the job is invalid.
@@ -75,8 +76,8 @@ fn PlanSection() -> impl IntoView {
                             <h4>{title}</h4>
                             <p>{legs(&s.legs_a)}</p>
                             <p>"Neutral " <strong data-testid=format!("{id}-neutral")>{format::amps(s.neutral_current_a)}</strong></p>
-                            {s.transformer_loading_pct.map(|t| view! { <p>"Transformer " <strong data-testid=format!("{id}-loading")>{format!("{t:.0} %")}</strong> " of its rating"</p> })}
-                            {s.fault_at_service.map(|f| view! { <p>{format!("Fault at the panel {:.0} A line to line", f.line_to_line_a)}</p> })}
+                            {s.transformer_loading_pct.map(|t| view! { <p>"Transformer " <strong data-testid=format!("{id}-loading")>{format!("{t} %", t = fixed(t, 0))}</strong> " of its rating"</p> })}
+                            {s.fault_at_service.map(|f| view! { <p>{format!("Fault at the panel {} A line to line", fixed(f.line_to_line_a, 0))}</p> })}
                             <p>{s.below_nominal_pct.iter().map(|(k, v)| format!("{k} {} below nominal", format::pct(*v))).collect::<Vec<_>>().join(" · ")}</p>
                         </div>
                     }
@@ -141,7 +142,7 @@ fn ReportView(report: Report) -> impl IntoView {
                         <span class="big-figure" data-testid="appliance-volts">{format::volts(l.voltage_v)}</span>
                         <span>{format::pct(l.percent_of_rated)} " of rated"</span>
                         <span>{format::amps(l.current_a)}</span>
-                        <span>{format!("{:.0} W of {:.0} W", l.power_w, l.rated_w)}</span>
+                        <span>{format!("{} W of {} W", fixed(l.power_w, 0), fixed(l.rated_w, 0))}</span>
                     </div>
                     <p class="reason">{l.reason.clone()}</p>
                 </li>
