@@ -64,7 +64,7 @@ pub fn text_of_number(raw: &Raw<f64>) -> String {
 
 /// A float as short text: no trailing zeros, at most 6 decimals.
 pub fn trim_float(v: f64) -> String {
-    let s = format!("{v}", v = fixed(v, 6));
+    let s = fixed(v, 6).to_string();
     let s = s.trim_end_matches('0').trim_end_matches('.');
     if s == "-0" {
         "0".to_string()

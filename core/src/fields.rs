@@ -61,7 +61,7 @@ fn round(v: f64) -> String {
         return plain(v).to_string();
     }
     let digits = (3 - v.abs().log10().floor() as i32).max(0) as usize;
-    let s = format!("{v}", v = fixed(v, digits));
+    let s = fixed(v, digits).to_string();
     if s.contains('.') {
         s.trim_end_matches('0').trim_end_matches('.').to_string()
     } else {

@@ -83,15 +83,25 @@ pub fn check(job: &Job, net: &Network, sol: &Solution) -> Vec<MultiwireReport> {
             let message = match (same_leg, overloaded) {
                 (true, true) => format!(
                     "DANGER: every hot is on {}, so the shared neutral carries the sum, {amps} A, over its {rating}. With the main off and the panel tested dead, move one hot to another leg and tie the handles.",
-                    legs[0], amps = fixed(amps, 1)),
+                    legs[0],
+                    amps = fixed(amps, 1)
+                ),
                 (true, false) => format!(
                     "WARNING: every hot is on {}: the shared neutral carries the sum ({amps} A, rating {rating}) and no breaker protects it. With the main off and the panel tested dead, move one hot to another leg and tie the handles.",
-                    legs[0], amps = fixed(amps, 1)),
+                    legs[0],
+                    amps = fixed(amps, 1)
+                ),
                 (false, true) => {
-                    format!("The shared neutral carries {amps} A, over its {rating}.", amps = fixed(amps, 1))
+                    format!(
+                        "The shared neutral carries {amps} A, over its {rating}.",
+                        amps = fixed(amps, 1)
+                    )
                 }
                 (false, false) => {
-                    format!("The shared neutral carries {amps} A (rating {rating}).", amps = fixed(amps, 1))
+                    format!(
+                        "The shared neutral carries {amps} A (rating {rating}).",
+                        amps = fixed(amps, 1)
+                    )
                 }
             };
             let (if_neutral_opens, if_neutral_opens_error) = match if_open(job, net, k, &members) {

@@ -368,15 +368,22 @@ pub fn build(job: &Job, net: &Network, sol: &Solution) -> Report {
         notes.push("The panel neutral is open and nothing connects to it, so voltages to neutral are undefined.".to_string());
     }
     if touch {
+        let at = shift.map_or_else(
+            || "an unknown voltage".to_string(),
+            |v| format!("{} V", fixed(v, 0)),
+        );
         notes.push(format!(
-            "DANGER: the panel's neutral bar sits {} from earth, above the {TOUCH_VOLTAGE_LIMIT_V} V touch-voltage limit (IEC 60364-4-41). Bonded metal, pipes and appliance cases can shock: keep people away and treat everything as energized until the neutral is repaired.",
-            shift.map(|v| format!("{v} V", v = fixed(v, 0))).unwrap_or_else(|| "an unknown voltage".to_string()), TOUCH_VOLTAGE_LIMIT_V = fixed(TOUCH_VOLTAGE_LIMIT_V, 0)));
+            "DANGER: the panel's neutral bar sits {at} from earth, above the {} V touch-voltage limit (IEC 60364-4-41). Bonded metal, pipes and appliance cases can shock: keep people away and treat everything as energized until the neutral is repaired.",
+            fixed(TOUCH_VOLTAGE_LIMIT_V, 0)
+        ));
     }
     let earth_rms = sol.earth_rms();
     if earth_rms > 0.0 && !matches!(job.neutral(), NeutralState::Intact) {
         notes.push(format!(
             "{earth_rms} A returns through the grounding electrode and the earth beside the neutral conductor's {} A; touching the neutral or grounding conductors can be dangerous.",
-            fixed(sol.neutral_rms(), 1), earth_rms = fixed(earth_rms, 1)));
+            fixed(sol.neutral_rms(), 1),
+            earth_rms = fixed(earth_rms, 1)
+        ));
     }
     if matches!(job.neutral(), NeutralState::Loose { .. }) {
         notes.push("A loose neutral is urgent to repair, even while every appliance is still within its range: the connection heats and gets worse.".to_string());

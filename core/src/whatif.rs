@@ -146,13 +146,13 @@ pub fn sweep_csv(s: &Sweep) -> String {
     out.push('\n');
     for (k, p) in s.neutral_ohms.iter().enumerate() {
         match p {
-            Some(r) => out.push_str(&format!("{r}", r = fixed(*r, 6))),
+            Some(r) => out.push_str(&fixed(*r, 6).to_string()),
             None => out.push_str("open"),
         }
         for l in &s.loads {
             out.push(',');
             if let Some(v) = l.volts[k] {
-                out.push_str(&format!("{v}", v = fixed(v, 3)));
+                out.push_str(&fixed(v, 3).to_string());
             }
         }
         out.push('\n');

@@ -294,19 +294,38 @@ fn StartPanel(index: usize) -> impl IntoView {
         match &result() {
             Err(e) => view! { <p class="problems" data-testid="start-problem">{e.clone()}</p> }.into_any(),
             Ok(s) => view! {
-                <p data-testid="start-motor">{format!("{} A locked rotor ({}); the motor gets {} at the instant of starting", fixed(s.locked_rotor_a, 0), s.locked_rotor_basis, crate::format::volts(s.motor_v))}
-                    {s.starting_torque_pct.map(|t| format!(", {t} % of full-load torque", t = fixed(t, 0)))}
+                <p data-testid="start-motor">{format!(
+                    "{} A locked rotor ({}); the motor gets {} at the instant of starting",
+                    fixed(s.locked_rotor_a, 0),
+                    s.locked_rotor_basis,
+                    crate::format::volts(s.motor_v)
+                )}
+                    {s.starting_torque_pct.map(|t| format!(
+                        ", {t} % of full-load torque",
+                        t = fixed(t, 0)
+                    ))}
                     <strong data-testid="start-can">{if s.can_start { ": it can start." } else { ": it may not start." }}</strong></p>
                 <ul class="dips">
                     {s.appliances.iter().map(|d| view! {
                         <li data-testid="start-dip" data-flicker=d.flicker_visible.to_string()>
                             {format!("{}: {} → {}", d.name, crate::format::volts(d.before_v), crate::format::volts(d.during_v))}
-                            {d.dip_pct.map(|p| if p >= 0.0 { format!(" (dips {p} %)", p = fixed(p, 1)) } else { format!(" (rises {} %)", fixed(-p, 1)) })}
+                            {d.dip_pct.map(|p| if p >= 0.0 { format!(
+                                " (dips {p} %)",
+                                p = fixed(p, 1)
+                            ) } else { format!(
+                                " (rises {} %)",
+                                fixed(-p, 1)
+                            ) })}
                             {d.flicker_visible.then_some(" · lights flicker visibly")}
                         </li>
                     }).collect_view()}
                 </ul>
-                <p class="note">{format!("Flicker threshold {} % at {} starts per hour ({}).", fixed(s.flicker_threshold_pct, 1), tapline_core::figures::plain(s.starts_per_hour), s.flicker_source)}</p>
+                <p class="note">{format!(
+                    "Flicker threshold {} % at {} starts per hour ({}).",
+                    fixed(s.flicker_threshold_pct, 1),
+                    tapline_core::figures::plain(s.starts_per_hour),
+                    s.flicker_source
+                )}</p>
                 {s.notes.iter().map(|n| view! { <p class="note">{n.clone()}</p> }).collect_view()}
             }
             .into_any(),

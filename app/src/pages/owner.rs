@@ -206,7 +206,11 @@ fn ServiceDrawing(
         "loose" => view! {
             <g class="neutral-loose">
                 <line class="wire wire-N" x1=coord(nx) y1="26" x2=coord(nx) y2=coord(top + 16.0) />
-                <path class="resistor" d=format!("M{} {} l6 3 l-12 6 l12 6 l-12 6 l6 3", tapline_core::figures::plain(nx), tapline_core::figures::plain(top - 16.0)) />
+                <path class="resistor" d=format!(
+                    "M{} {} l6 3 l-12 6 l12 6 l-12 6 l6 3",
+                    tapline_core::figures::plain(nx),
+                    tapline_core::figures::plain(top - 16.0)
+                ) />
                 <text class="break-label" x=coord(nx + 12.0) y=coord(top)>{cat.fill("diagram.loose", &[("ohms", &d.neutral_ohms.map(|o| tapline_core::figures::plain(o).to_string()).unwrap_or_default())])}</text>
             </g>
         }

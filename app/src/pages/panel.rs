@@ -285,7 +285,10 @@ fn Balancing() -> impl IntoView {
                         <p>{legs_line(&b.after.legs)}</p>
                     </div>
                 </div>
-                <p class="note">{format!("The best arrangement within {} A, with the fewest moves. 240 V circuits and circuits marked to stay are not moved; a shared-neutral circuit moves as one handle-tied breaker.", fixed(b.within_a, 2))}</p>
+                <p class="note">{format!(
+                    "The best arrangement within {} A, with the fewest moves. 240 V circuits and circuits marked to stay are not moved; a shared-neutral circuit moves as one handle-tied breaker.",
+                    fixed(b.within_a, 2)
+                )}</p>
                 {if none {
                     view! { <p data-testid="no-moves">"This panel is already as balanced as its movable circuits allow."</p> }.into_any()
                 } else {

@@ -99,12 +99,24 @@ fn set_result(o: &SetOutcome) -> AnyView {
             view! {
                 <div class=format!("verdict verdict-{code}") data-testid="diagnosis" data-verdict=code>
                     <p class="big-figure">{d.verdict.word().to_ascii_uppercase()}</p>
-                    <p>"Neutral " <strong data-testid="neutral-ohms-result">{format!("{} Ω", fixed(d.neutral_ohms, 3))}</strong>
+                    <p>"Neutral " <strong data-testid="neutral-ohms-result">{format!(
+                        "{} Ω",
+                        fixed(d.neutral_ohms, 3)
+                    )}</strong>
                         {format!(" ± {} Ω", fixed(d.neutral_ohms_uncertainty, 3))}
-                        " · each hot " {format!("{} Ω ± {} Ω", fixed(d.hot_ohms, 3), fixed(d.hot_ohms_uncertainty, 3))}</p>
+                        " · each hot " {format!(
+                            "{} Ω ± {} Ω",
+                            fixed(d.hot_ohms, 3),
+                            fixed(d.hot_ohms_uncertainty, 3)
+                        )}</p>
                     <p>{d.reason.clone()}</p>
                     <p><strong>"Where: "</strong>{d.likely_location} " — " {d.location_reason.clone()}</p>
-                    <p class="note">{format!("Thresholds {} Ω and {} Ω ({}).", fixed(d.thresholds_ohms[0], 2), fixed(d.thresholds_ohms[1], 2), d.thresholds_source)}</p>
+                    <p class="note">{format!(
+                        "Thresholds {} Ω and {} Ω ({}).",
+                        fixed(d.thresholds_ohms[0], 2),
+                        fixed(d.thresholds_ohms[1], 2),
+                        d.thresholds_source
+                    )}</p>
                 </div>
             }
             .into_any()

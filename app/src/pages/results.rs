@@ -76,8 +76,14 @@ fn PlanSection() -> impl IntoView {
                             <h4>{title}</h4>
                             <p>{legs(&s.legs_a)}</p>
                             <p>"Neutral " <strong data-testid=format!("{id}-neutral")>{format::amps(s.neutral_current_a)}</strong></p>
-                            {s.transformer_loading_pct.map(|t| view! { <p>"Transformer " <strong data-testid=format!("{id}-loading")>{format!("{t} %", t = fixed(t, 0))}</strong> " of its rating"</p> })}
-                            {s.fault_at_service.map(|f| view! { <p>{format!("Fault at the panel {} A line to line", fixed(f.line_to_line_a, 0))}</p> })}
+                            {s.transformer_loading_pct.map(|t| view! { <p>"Transformer " <strong data-testid=format!("{id}-loading")>{format!(
+                                "{t} %",
+                                t = fixed(t, 0)
+                            )}</strong> " of its rating"</p> })}
+                            {s.fault_at_service.map(|f| view! { <p>{format!(
+                                "Fault at the panel {} A line to line",
+                                fixed(f.line_to_line_a, 0)
+                            )}</p> })}
                             <p>{s.below_nominal_pct.iter().map(|(k, v)| format!("{k} {} below nominal", format::pct(*v))).collect::<Vec<_>>().join(" · ")}</p>
                         </div>
                     }
@@ -142,7 +148,11 @@ fn ReportView(report: Report) -> impl IntoView {
                         <span class="big-figure" data-testid="appliance-volts">{format::volts(l.voltage_v)}</span>
                         <span>{format::pct(l.percent_of_rated)} " of rated"</span>
                         <span>{format::amps(l.current_a)}</span>
-                        <span>{format!("{} W of {} W", fixed(l.power_w, 0), fixed(l.rated_w, 0))}</span>
+                        <span>{format!(
+                            "{} W of {} W",
+                            fixed(l.power_w, 0),
+                            fixed(l.rated_w, 0)
+                        )}</span>
                     </div>
                     <p class="reason">{l.reason.clone()}</p>
                 </li>

@@ -125,8 +125,15 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
                         view! {
                             <tr class:best=best data-testid="sizing-row" data-size=c.code.clone() data-meets=meets.to_string()>
                                 <td>{c.size.clone()} {best.then_some(" ★")}</td>
-                                <td>{format!("{} V · {} %", fixed(c.drop_v, 1), fixed(c.drop_pct, 1))}</td>
-                                <td>{c.ampacity_a.map(|a| format!("{a} A", a = fixed(a, 0))).unwrap_or_else(|| "–".to_string())}</td>
+                                <td>{format!(
+                                    "{} V · {} %",
+                                    fixed(c.drop_v, 1),
+                                    fixed(c.drop_pct, 1)
+                                )}</td>
+                                <td>{c.ampacity_a.map(|a| format!(
+                                    "{a} A",
+                                    a = fixed(a, 0)
+                                )).unwrap_or_else(|| "–".to_string())}</td>
                                 <td><button class="small" data-testid="sizing-use" on:click=move |_| {
                                     let (code, material) = (code.clone(), material.clone());
                                     state.edit_structure(|j| {
@@ -139,7 +146,13 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
                     })
                     .collect_view();
                 view! {
-                    <p data-testid="sizing-summary">{format!("{} at power factor {}, target {} % of {} V. ", format::amps(s.amps), fixed(s.power_factor, 2), tapline_core::figures::plain(s.target_pct), fixed(s.circuit_v, 0))}
+                    <p data-testid="sizing-summary">{format!(
+                        "{} at power factor {}, target {} % of {} V. ",
+                        format::amps(s.amps),
+                        fixed(s.power_factor, 2),
+                        tapline_core::figures::plain(s.target_pct),
+                        fixed(s.circuit_v, 0)
+                    )}
                         <strong data-testid="sizing-smallest">{s.smallest.clone().map(|x| format!("Smallest that meets both: {x}.")).unwrap_or_else(|| "No standard size meets both.".to_string())}</strong></p>
                     <table class="sizing" data-testid="sizing-table">
                         <thead><tr><th>"Size"</th><th>"Drop"</th><th>"Ampacity"</th><th></th></tr></thead>

@@ -855,7 +855,8 @@ pub fn balance_with(job: &Job, layout: Layout, basis: Basis) -> Balance {
     if least_gap > TOLERANCE_A / 2.0 {
         notes.push(format!(
             "This panel has more arrangements than the search could finish in time: the answer is proven within {} A of the least neutral current possible.",
-            fixed(least_gap + TOLERANCE_A, 2)));
+            fixed(least_gap + TOLERANCE_A, 2)
+        ));
     }
     if !proved {
         notes.push(

@@ -372,7 +372,10 @@ fn check_readings(
             if spread(|r| r.i1).max(spread(|r| r.i2)) < MIN_CURRENT_CHANGE_A {
                 c.fail(
                     &list_path,
-                    format!("the readings at the {name} show no change in leg current: switch a known load on one leg (at least {} A) between readings", plain(MIN_CURRENT_CHANGE_A)),
+                    format!(
+                        "the readings at the {name} show no change in leg current: switch a known load on one leg (at least {} A) between readings",
+                        plain(MIN_CURRENT_CHANGE_A)
+                    ),
                 );
             }
         }
@@ -499,7 +502,7 @@ fn compare(sets: &[SetOutcome]) -> Option<String> {
         when(s1),
         fixed(d1.neutral_ohms, 3),
         fixed(d1.neutral_ohms_uncertainty, 3),
-        d1.verdict.word(),
+        d1.verdict.word()
     ))
 }
 
@@ -786,7 +789,12 @@ pub fn verdict_for(ohms: f64, uncertainty: f64) -> (Verdict, String) {
     };
     (
         v,
-        format!("neutral {ohms} Ω ± {uncertainty} Ω moves the neutral about {shift} V per 10 A of imbalance: {what}", ohms = fixed(ohms, 3), uncertainty = fixed(uncertainty, 3), shift = fixed(shift, 1)),
+        format!(
+            "neutral {ohms} Ω ± {uncertainty} Ω moves the neutral about {shift} V per 10 A of imbalance: {what}",
+            ohms = fixed(ohms, 3),
+            uncertainty = fixed(uncertainty, 3),
+            shift = fixed(shift, 1)
+        ),
     )
 }
 
@@ -855,7 +863,9 @@ pub fn diagnose(r: &Readings) -> Result<Diagnosis, DiagnoseError> {
             verdict = Verdict::NotPhysical;
             reason = format!(
                 "the readings scatter by {} V around the best fit, far more than the meters' {} V: the supply voltage probably changed between readings; take them again in quick succession",
-                fixed(f.residual_rms_v, 2), fixed(f.meter_noise_v, 2));
+                fixed(f.residual_rms_v, 2),
+                fixed(f.meter_noise_v, 2)
+            );
         }
     }
     if verdict != neutral_verdict && verdict != Verdict::NotPhysical {
@@ -871,7 +881,9 @@ pub fn diagnose(r: &Readings) -> Result<Diagnosis, DiagnoseError> {
     if let Some(a) = settle_with_test_load_a {
         reason.push_str(&format!(
             "; a resistive test load changing one leg's current by about {a} A (a {} W heater at 120 V) would settle it",
-            fixed(a * 120.0, 0), a = fixed(a, 0)));
+            fixed(a * 120.0, 0),
+            a = fixed(a, 0)
+        ));
     }
     let (likely_location, location_reason) = match (&at_meter, &at_panel) {
         (Some(m), Some(p)) => {
@@ -882,12 +894,20 @@ pub fn diagnose(r: &Readings) -> Result<Diagnosis, DiagnoseError> {
             } else if m.neutral_ohms > building {
                 (
                     "utility side",
-                    format!("{} Ω of the neutral's {} Ω is before the meter (transformer, service drop, meter base): call the utility", fixed(m.neutral_ohms, 3), fixed(p.neutral_ohms, 3)),
+                    format!(
+                        "{} Ω of the neutral's {} Ω is before the meter (transformer, service drop, meter base): call the utility",
+                        fixed(m.neutral_ohms, 3),
+                        fixed(p.neutral_ohms, 3)
+                    ),
                 )
             } else {
                 (
                     "building side",
-                    format!("{building} Ω of the neutral's {} Ω is between the meter and the panel (service entrance conductors, panel neutral bar)", fixed(p.neutral_ohms, 3), building = fixed(building, 3)),
+                    format!(
+                        "{building} Ω of the neutral's {} Ω is between the meter and the panel (service entrance conductors, panel neutral bar)",
+                        fixed(p.neutral_ohms, 3),
+                        building = fixed(building, 3)
+                    ),
                 )
             }
         }

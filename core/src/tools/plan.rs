@@ -116,7 +116,8 @@ pub fn plan(job: &Job) -> Result<Plan, SolveError> {
         if t.loading_pct > 100.0 {
             notes.push(format!(
                 "With the planned appliances the transformer carries {} % of its full-load current: tell the utility before adding them.",
-                fixed(t.loading_pct, 0)));
+                fixed(t.loading_pct, 0)
+            ));
         }
     }
     Ok(Plan {

@@ -409,7 +409,9 @@ pub fn size(run: &Run) -> Sizing {
         .map(|c| c.size.clone());
     let mut notes = vec![format!(
         "Drop target {} % of {} V ({}); the NEC's informational notes suggest 3 % for a branch circuit and 5 % for feeder and branch together.",
-        plain(run.target_pct), fixed(run.circuit_v, 0), run.kind
+        plain(run.target_pct),
+        fixed(run.circuit_v, 0),
+        run.kind
     )];
     if run.metric {
         notes.push("Metric sizes carry no NEC Table 310.16 ampacity: check the current-carrying capacity under the local rules (IEC 60364-5-52).".to_string());

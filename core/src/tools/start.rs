@@ -173,7 +173,10 @@ pub fn start(job: &Job, name: &str, starts_per_hour: f64) -> Result<Start, Start
             .iter()
             .any(|a| a.dip_pct.is_some_and(|p| p < 0.0))
         {
-            notes.push(format!("While it starts one leg dips by up to {worst} % and the other rises: the neutral shifts, so the dip is worse than the service alone explains. Check the neutral.", worst = fixed(worst, 1)));
+            notes.push(format!(
+                "While it starts one leg dips by up to {worst} % and the other rises: the neutral shifts, so the dip is worse than the service alone explains. Check the neutral.",
+                worst = fixed(worst, 1)
+            ));
         }
     }
     if !can_start {
