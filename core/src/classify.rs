@@ -356,155 +356,147 @@ pub enum Why {
     },
 }
 
+impl Why {
+    /// The voltage the reason is about, volts (none for an appliance switched off with no voltage
+    /// across its switch).
+    fn volts(&self) -> Option<f64> {
+        match *self {
+            Why::Off => None,
+            Why::OffLive { v }
+            | Why::NoVoltage { v }
+            | Why::Dark { v, .. }
+            | Why::StalledLow { v, .. }
+            | Why::StalledFeeble { v }
+            | Why::StalledCollapse { v }
+            | Why::DroppedLow { v, .. }
+            | Why::DroppedCollapse { v }
+            | Why::AboveInput { v, .. }
+            | Why::NearInputEdge { v, .. }
+            | Why::InsideInput { v, .. }
+            | Why::Rated { v, .. }
+            | Why::Damage { v, .. }
+            | Why::Over { v, .. }
+            | Why::Under { v, .. }
+            | Why::SystemBand { v, .. } => Some(v),
+        }
+    }
+}
+
 impl std::fmt::Display for Why {
     fn fmt(&self, out: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        // Every figure of a reason is printed whole: volts, and percent of the rating or power.
+        let whole = |x: f64| fixed(x, 0);
+        let v = whole(self.volts().unwrap_or(0.0));
         match *self {
             Why::Off => write!(out, "switched off"),
-            Why::OffLive { v } => write!(
+            Why::OffLive { .. } => write!(
                 out,
-                "switched off, but {v} V stands across its switch: its terminals are live and can shock",
-                v = fixed(v, 0)
+                "switched off, but {v} V stands across its switch: its terminals are live and can shock"
             ),
-            Why::NoVoltage { v } => write!(
-                out,
-                "gets no voltage ({v} V): does not run",
-                v = fixed(v, 0)
-            ),
-            Why::Dark { v, f } => write!(
-                out,
-                "gets {v} V ({} %): dark",
-                fixed(f * 100.0, 0),
-                v = fixed(v, 0)
-            ),
-            Why::StalledLow { v, f } => write!(
+            Why::NoVoltage { .. } => write!(out, "gets no voltage ({v} V): does not run"),
+            Why::Dark { f, .. } => write!(out, "gets {v} V ({} %): dark", whole(f * 100.0)),
+            Why::StalledLow { f, .. } => write!(
                 out,
                 "gets {v} V ({} %): too low to keep turning; it stalls and draws locked-rotor current until its overload trips",
-                fixed(f * 100.0, 0),
-                v = fixed(v, 0)
+                whole(f * 100.0)
             ),
-            Why::StalledFeeble { v } => write!(
+            Why::StalledFeeble { .. } => write!(
                 out,
-                "gets {v} V: far too little to turn; it sits stalled and may hum until the voltage returns or its overload trips",
-                v = fixed(v, 0)
+                "gets {v} V: far too little to turn; it sits stalled and may hum until the voltage returns or its overload trips"
             ),
-            Why::StalledCollapse { v } => write!(
+            Why::StalledCollapse { .. } => write!(
                 out,
-                "the supply sags too far when it runs, so it stalls (locked-rotor, {v} V) until its overload trips",
-                v = fixed(v, 0)
+                "the supply sags too far when it runs, so it stalls (locked-rotor, {v} V) until its overload trips"
             ),
-            Why::DroppedLow { v, min_v } => write!(
+            Why::DroppedLow { min_v, .. } => write!(
                 out,
                 "gets {v} V: below its {min_v} V input range, so it shuts off or keeps restarting",
-                v = fixed(v, 0),
-                min_v = fixed(min_v, 0)
+                min_v = whole(min_v)
             ),
-            Why::DroppedCollapse { v } => write!(
+            Why::DroppedCollapse { .. } => write!(
                 out,
-                "the supply sags too far at its full power, so it shuts off or keeps restarting ({v} V while off)",
-                v = fixed(v, 0)
+                "the supply sags too far at its full power, so it shuts off or keeps restarting ({v} V while off)"
             ),
-            Why::AboveInput { v, max_v } => write!(
+            Why::AboveInput { max_v, .. } => write!(
                 out,
                 "gets {v} V: above its {max_v} V input limit; its power supply is likely to fail",
-                v = fixed(v, 0),
-                max_v = fixed(max_v, 0)
+                max_v = whole(max_v)
             ),
-            Why::NearInputEdge { v, min_v, max_v } => write!(
+            Why::NearInputEdge { min_v, max_v, .. } => write!(
                 out,
                 "gets {v} V: near the edge of its {min_v}–{max_v} V input range",
-                v = fixed(v, 0),
-                min_v = fixed(min_v, 0),
-                max_v = fixed(max_v, 0)
+                min_v = whole(min_v),
+                max_v = whole(max_v)
             ),
-            Why::InsideInput { v, min_v, max_v } => write!(
+            Why::InsideInput { min_v, max_v, .. } => write!(
                 out,
                 "gets {v} V: inside its {min_v}–{max_v} V input range",
-                v = fixed(v, 0),
-                min_v = fixed(min_v, 0),
-                max_v = fixed(max_v, 0)
+                min_v = whole(min_v),
+                max_v = whole(max_v)
             ),
-            Why::Rated { v, f } => write!(
+            Why::Rated { f, .. } => write!(
                 out,
                 "gets {v} V ({} % of its rating): within its tolerance",
-                fixed(f * 100.0, 0),
-                v = fixed(v, 0)
+                whole(f * 100.0)
             ),
-            Why::Damage { model, v, f } => match model {
+            Why::Damage { model, f, .. } => match model {
                 Model::Resistive => write!(
                     out,
                     "gets {v} V ({} % power): its {} overheats and is likely to fail early",
-                    fixed(f * f * 100.0, 0),
-                    RESISTIVE.part,
-                    v = fixed(v, 0)
+                    whole(f * f * 100.0),
+                    RESISTIVE.part
                 ),
                 Model::Lamp => write!(
                     out,
                     "gets {v} V: its {} runs so hot it keeps {} of its life and is likely to burn out soon",
                     LAMP.part,
-                    life_left(f),
-                    v = fixed(v, 0)
+                    life_left(f)
                 ),
                 _ => write!(
                     out,
                     "gets {v} V ({} %): its {} is likely to be damaged",
-                    fixed(f * 100.0, 0),
-                    tolerance_of(model).part,
-                    v = fixed(v, 0)
+                    whole(f * 100.0),
+                    tolerance_of(model).part
                 ),
             },
-            Why::Over { model, v, f } => match model {
+            Why::Over { model, f, .. } => match model {
                 Model::Resistive => write!(
                     out,
                     "gets {v} V: runs at {} % power and overheats",
-                    fixed(f * f * 100.0, 0),
-                    v = fixed(v, 0)
+                    whole(f * f * 100.0)
                 ),
                 Model::Lamp => write!(
                     out,
                     "gets {v} V: burns brighter with {} of its normal life",
-                    life_left(f),
-                    v = fixed(v, 0)
+                    life_left(f)
                 ),
                 _ => write!(
                     out,
                     "gets {v} V ({} %): over-voltage stresses its {}",
-                    fixed(f * 100.0, 0),
-                    tolerance_of(model).part,
-                    v = fixed(v, 0)
+                    whole(f * 100.0),
+                    tolerance_of(model).part
                 ),
             },
-            Why::Under { model, v, f } => match model {
+            Why::Under { model, f, .. } => match model {
                 Model::Resistive => write!(
                     out,
                     "gets {v} V: heats slowly at {} % power",
-                    fixed(f * f * 100.0, 0),
-                    v = fixed(v, 0)
+                    whole(f * f * 100.0)
                 ),
-                Model::Lamp => write!(
-                    out,
-                    "gets {v} V ({} %): dim",
-                    fixed(f * 100.0, 0),
-                    v = fixed(v, 0)
-                ),
+                Model::Lamp => write!(out, "gets {v} V ({} %): dim", whole(f * 100.0)),
                 Model::Motor => write!(
                     out,
                     "gets {v} V ({} %): runs slow and hot, drawing extra current",
-                    fixed(f * 100.0, 0),
-                    v = fixed(v, 0)
+                    whole(f * 100.0)
                 ),
-                _ => write!(
-                    out,
-                    "gets {v} V ({} %): under-voltage",
-                    fixed(f * 100.0, 0),
-                    v = fixed(v, 0)
-                ),
+                _ => write!(out, "gets {v} V ({} %): under-voltage", whole(f * 100.0)),
             },
             Why::SystemBand {
-                v,
                 standard,
                 band,
                 nominal,
                 high,
+                ..
             } => {
                 let side = if high { "high" } else { "low" };
                 match band {
@@ -512,27 +504,23 @@ impl std::fmt::Display for Why {
                         out,
                         "gets {v} V: within {} Range A for {nominal} V",
                         standard.name(),
-                        v = fixed(v, 0),
-                        nominal = fixed(nominal, 0)
+                        nominal = whole(nominal)
                     ),
                     Band::B if standard == Standard::AnsiC84_1 => write!(
                         out,
                         "gets {v} V: {side}, within ANSI C84.1 Range B for {nominal} V; the service needs attention",
-                        v = fixed(v, 0),
-                        nominal = fixed(nominal, 0)
+                        nominal = whole(nominal)
                     ),
                     Band::B => write!(
                         out,
                         "gets {v} V: {side}, outside IEC 60038's ±10 % for {nominal} V but within the installation's allowance",
-                        v = fixed(v, 0),
-                        nominal = fixed(nominal, 0)
+                        nominal = whole(nominal)
                     ),
                     Band::Outside => write!(
                         out,
                         "gets {v} V: {side}, outside the {} range for {nominal} V",
                         standard.name(),
-                        v = fixed(v, 0),
-                        nominal = fixed(nominal, 0)
+                        nominal = whole(nominal)
                     ),
                 }
             }
