@@ -304,8 +304,7 @@ mod tests {
     }
 
     /// The standard library's reader is the second model here: the same grammar (but for its
-    /// `inf` and `nan`), the same value to the bit for numbers as people type them, and within one
-    /// unit in the last place for long ones.
+    /// `inf` and `nan`) and the same value to the bit for numbers as people type them.
     #[test]
     fn reads_decimals_as_the_standard_library_does() {
         let same = [
