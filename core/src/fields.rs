@@ -69,6 +69,18 @@ fn round(v: f64) -> String {
     }
 }
 
+/// A number as a message quotes it: as written, or in powers of ten where it would take more
+/// than six zeros after the point or sixteen digits before it (`1e-300` and `2.5e+20`, not
+/// hundreds of zeros).
+fn quoted(v: f64) -> String {
+    let size = v.abs();
+    if size != 0.0 && !(1e-6..1e15).contains(&size) {
+        zmij::Buffer::new().format(v).to_string()
+    } else {
+        plain(v).to_string()
+    }
+}
+
 /// What a file held where a number belongs, for a message: text as it was typed (in quotes, cut
 /// after 40 characters), or what kind of value it was.
 fn shown(given: &Value) -> String {
@@ -114,7 +126,7 @@ impl Checker {
         if rule.accepts(v) {
             Some(v)
         } else {
-            self.fail(path, format!("{} (got {})", rule.message(), plain(v)));
+            self.fail(path, format!("{} (got {})", rule.message(), quoted(v)));
             None
         }
     }
@@ -426,6 +438,29 @@ mod tests {
         for (given, said) in cases {
             let mut c = Checker::new();
             assert_eq!(c.number(&Raw::Invalid(given), "loads[0].watts", rule), None);
+            assert_eq!(
+                c.problems[0].message,
+                format!("must be a number from 0.1 to 1000000 {said}")
+            );
+        }
+    }
+
+    /// A number out of range is quoted as a person can read it, however far out it is.
+    #[test]
+    fn a_number_out_of_range_is_quoted_readably() {
+        let rule = Rule::Between(0.1, 1e6);
+        for (given, said) in [
+            (1e9, "(got 1000000000)"),
+            (-1.0, "(got -1)"),
+            (0.05, "(got 0.05)"),
+            (0.0, "(got 0)"),
+            (1e-300, "(got 1e-300)"),
+            (5e-324, "(got 5e-324)"),
+            (2.5e20, "(got 2.5e+20)"),
+            (-1e-9, "(got -1e-9)"),
+        ] {
+            let mut c = Checker::new();
+            assert_eq!(c.number(&Raw::Given(given), "loads[0].watts", rule), None);
             assert_eq!(
                 c.problems[0].message,
                 format!("must be a number from 0.1 to 1000000 {said}")
