@@ -423,7 +423,6 @@ mod tests {
     /// their entries was refused (`1,500`, which the app does not guess at, among them).
     #[test]
     fn a_field_that_is_not_a_number_says_what_it_held() {
-        let rule = Rule::Between(0.1, 1e6);
         let cases = [
             (Value::String("1,500".into()), "(got \"1,500\")"),
             (Value::Bool(true), "(got true)"),
@@ -436,19 +435,27 @@ mod tests {
             ),
         ];
         for (given, said) in cases {
-            let mut c = Checker::new();
-            assert_eq!(c.number(&Raw::Invalid(given), "loads[0].watts", rule), None);
             assert_eq!(
-                c.problems[0].message,
+                refusal(Raw::Invalid(given)),
                 format!("must be a number from 0.1 to 1000000 {said}")
             );
         }
     }
 
+    /// The one message a watts field between 0.1 and 1,000,000 gets for `raw`.
+    fn refusal(raw: Raw<f64>) -> String {
+        let mut c = Checker::new();
+        assert_eq!(
+            c.number(&raw, "loads[0].watts", Rule::Between(0.1, 1e6)),
+            None
+        );
+        assert_eq!(c.problems.len(), 1);
+        c.problems.remove(0).message
+    }
+
     /// A number out of range is quoted as a person can read it, however far out it is.
     #[test]
     fn a_number_out_of_range_is_quoted_readably() {
-        let rule = Rule::Between(0.1, 1e6);
         for (given, said) in [
             (1e9, "(got 1000000000)"),
             (-1.0, "(got -1)"),
@@ -459,10 +466,8 @@ mod tests {
             (2.5e20, "(got 2.5e+20)"),
             (-1e-9, "(got -1e-9)"),
         ] {
-            let mut c = Checker::new();
-            assert_eq!(c.number(&Raw::Given(given), "loads[0].watts", rule), None);
             assert_eq!(
-                c.problems[0].message,
+                refusal(Raw::Given(given)),
                 format!("must be a number from 0.1 to 1000000 {said}")
             );
         }

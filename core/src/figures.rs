@@ -122,6 +122,18 @@ fn shortest(text: &str) -> (String, i64) {
     }
 }
 
+/// A finite, non-negative `v` as m·2^e exactly: its significand and exponent.
+fn binary(v: f64) -> (u64, i64) {
+    let bits = v.to_bits();
+    let biased = ((bits >> 52) & 0x7ff) as i64;
+    let fraction = bits & ((1 << 52) - 1);
+    if biased == 0 {
+        (fraction, -1074)
+    } else {
+        (fraction | 1 << 52, biased - 1075)
+    }
+}
+
 /// The exact value of a finite, non-negative `v` as decimal digits and a scale: v = digits ×
 /// 10^−scale, the digits without leading zeros (`"0"` for zero).
 ///
@@ -129,14 +141,7 @@ fn shortest(text: &str) -> (String, i64) {
 /// when e < 0 (2^−s = 5^s/10^s). M is worked out in base 10^9, a factor of 2^29 or 5^12 at a time.
 fn exact(v: f64) -> (String, usize) {
     const LIMB: u64 = 1_000_000_000;
-    let bits = v.to_bits();
-    let biased = ((bits >> 52) & 0x7ff) as i64;
-    let fraction = bits & ((1 << 52) - 1);
-    let (m, e) = if biased == 0 {
-        (fraction, -1074)
-    } else {
-        (fraction | 1 << 52, biased - 1075)
-    };
+    let (m, e) = binary(v);
     if m == 0 {
         return ("0".to_string(), 0);
     }
@@ -218,6 +223,17 @@ fn plus_one(digits: &str) -> String {
 /// Whether a finite, non-negative `v` lies exactly halfway between 0.digits × 10^point and the
 /// next number of as many digits above it.
 fn halfway_above(v: f64, digits: &str, point: i64) -> bool {
+    // Most values are ruled out without working out their exact digits. With m odd, m·2^−s
+    // (s > 0) is m·5^s/10^s, whose last digit, at the s-th place after the point, is a 5 (m·5^s is
+    // odd and a multiple of 5): halfway at k = len − point decimals means exactly s = k + 1. An
+    // integer below 2^53 (an exponent e ≤ 0 with nothing after the point) is its own shortest
+    // text, never halfway.
+    let (m, e) = binary(v);
+    let odd_e = e + i64::from(m.trailing_zeros());
+    let decimals = digits.len() as i64 - point;
+    if m == 0 || (odd_e < 0 && -odd_e != decimals + 1) || (odd_e >= 0 && e <= 0) {
+        return false;
+    }
     let (exact, scale) = exact(v);
     // v × 10^(len − point + 1) must be the integer digits·10 + 5: the exact digits, short by
     // `drop` places, end in that integer and then only zeros.
@@ -358,6 +374,9 @@ mod tests {
             f64::INFINITY,
             f64::NEG_INFINITY,
             -2.5,
+            // −1149636667324797.25 exactly, halfway between two shortest texts (….2 and ….3);
+            // the standard library prints ….3.
+            f64::from_bits(0xc310_565a_94b4_e5f5),
         ];
         for v in cases.into_iter().chain(values(200_000)) {
             assert_eq!(plain(v).to_string(), format!("{v}"), "{v:e}");
