@@ -17,7 +17,8 @@ if (!dir) {
 
 const indexPath = join(dir, 'index.html');
 let html = readFileSync(indexPath, 'utf8');
-const inline = /<script type="module"([^>]*)>([\s\S]*?)<\/script>/g;
+// Trunk's minifier drops the quotes of attribute values, so each pattern takes them as optional.
+const inline = /<script type="?module"?([^>]*)>([\s\S]*?)<\/script>/g;
 html = html.replace(inline, (whole, attrs, body) => {
   if (/\bsrc=/.test(attrs) || body.trim() === '') {
     return whole;
@@ -159,12 +160,12 @@ function shortenBindingNames() {
   writeFileSync(join(dir, jsFile), js);
   for (const file of [jsFile, wasmFile]) {
     const digest = createHash('sha384').update(readFileSync(join(dir, file))).digest('base64');
-    const link = new RegExp(`(href="\\./${file.replace(/[.]/g, '\\.')}"[^>]*integrity=")sha384-[^"]*"`);
+    const link = new RegExp(`(href="?\\./${file.replace(/[.]/g, '\\.')}"?[^>]*integrity="?)sha384-[^"\\s>]*`);
     if (!link.test(html)) {
       console.error(`postbuild: index.html has no integrity for ${file}`);
       process.exit(1);
     }
-    html = html.replace(link, `$1sha384-${digest}"`);
+    html = html.replace(link, `$1sha384-${digest}`);
   }
   console.log(`postbuild: ${short.size} binding names shortened`);
 }
