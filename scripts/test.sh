@@ -23,6 +23,8 @@ if rustup toolchain list | grep -q '^nightly' && command -v cargo-fuzz >/dev/nul
 else
   echo "skipped: the nightly toolchain is not on this machine"
 fi
+step "build scripts (the post-build step's short binding names)"
+node --test tests/build/
 step "release build"
 trunk build --release --offline
 step "size"
