@@ -14,10 +14,10 @@ cd "$(dirname "$0")/.."
 # took it to 335 KB, to 340 KB when one decimal reader in place of the standard library's (and
 # its table of powers of five) took it to 324 KB, to 325 KB when the engine's own figure
 # printing in place of the standard library's took it to 312 KB, and to 320 KB when short binding
-# names and Trunk's minification of the page, style and glue took it to 306 KB: the budget keeps what was won and leaves room for one round of
-# features. The cut towards 180 KB is still to do: the breakdown in
-# DEVELOPERS.md shows the bytes spread over view code, Leptos and the engine rather than one
-# dependency.
+# names and Trunk's minification of the page, style and glue took it to 306 KB: the budget keeps
+# what was won and leaves room for one round of features. The cut towards 180 KB is still to do:
+# the breakdown in DEVELOPERS.md shows the bytes spread over view code, Leptos and the engine
+# rather than one dependency.
 BUDGET=320000
 [ -d dist ] || { echo "size-check: no dist/; build first (scripts/build.sh)" >&2; exit 1; }
 printf '%-44s %10s %10s %10s\n' file raw gzip brotli
@@ -46,8 +46,8 @@ PY
 then
   exit 1
 fi
-# wasm-bindgen names each binding after its function and a 16-digit hash, about 3 KB brotli over
-# the module and its glue; scripts/postbuild.mjs gives each a short name. A hashed name left in the
+# wasm-bindgen names each binding after its function and a 16-digit hash; over the module and its
+# glue the names cost about 3 KB brotli, and scripts/postbuild.mjs gives each a short one. A hashed name left in the
 # glue means the post-build step missed it (a new naming scheme, or the step not run).
 if grep -Eoq '__wbg_[A-Za-z0-9_]*_[0-9a-f]{16}|__invoke__h[0-9a-f]{16}' dist/*.js; then
   echo "size-check: FAILED: hashed binding names are left in dist/*.js; scripts/postbuild.mjs shortens them" >&2
