@@ -140,6 +140,11 @@ pub fn group_total(report: &Report, group: &str) -> String {
 /// it (tachys would print an f64 attribute with the standard library's float printing, which the
 /// app leaves out; see `tapline_core::figures`).
 pub fn coord(v: f64) -> String {
+    plain(v)
+}
+
+/// A number in the fewest digits that read back to it, as `{}` prints it (`1.5`, `1500`).
+pub fn plain(v: f64) -> String {
     tapline_core::figures::plain(v).to_string()
 }
 
@@ -154,10 +159,7 @@ pub fn fixed(v: f64, decimals: usize) -> String {
 pub fn status_line(found: NeutralState, now: &Report, if_open: Option<&Report>) -> String {
     let mut s = match found {
         NeutralState::Intact => String::new(),
-        NeutralState::Loose { ohms } => format!(
-            "neutral found loose ({} Ω) · ",
-            tapline_core::figures::plain(ohms)
-        ),
+        NeutralState::Loose { ohms } => format!("neutral found loose ({} Ω) · ", plain(ohms)),
         NeutralState::Open => "neutral found open · ".to_string(),
     };
     s.push_str(&format!("neutral {} A", fixed(now.neutral_current_a, 0)));

@@ -6,7 +6,6 @@ use crate::edit::neutral::Explore;
 use crate::format;
 use crate::messages::Catalogue;
 use tapline_core::classify::Outcome;
-use tapline_core::figures::fixed;
 use tapline_core::report::Report;
 use tapline_core::tools::diagnose::{Diagnosis, Verdict};
 
@@ -39,7 +38,7 @@ fn appliance_line(cat: Catalogue, l: &tapline_core::report::LoadReport) -> Strin
             &[
                 ("name", &l.name),
                 ("volts", &format::volts(Some(v))),
-                ("pct", &format!("{p} %", p = fixed(p, 0))),
+                ("pct", &format::pct(Some(p))),
                 ("outcome", cat.get(&format!("outcome.{}", l.outcome.code()))),
             ],
         ),
@@ -132,8 +131,8 @@ pub fn summary(
                 "owner.measured",
                 &[
                     ("taken", taken),
-                    ("ohms", &format!("{}", fixed(d.neutral_ohms, 3))),
-                    ("unc", &format!("{}", fixed(d.neutral_ohms_uncertainty, 3))),
+                    ("ohms", &format::fixed(d.neutral_ohms, 3)),
+                    ("unc", &format::fixed(d.neutral_ohms_uncertainty, 3)),
                     ("verdict", cat.get(&format!("verdict.{}", d.verdict.code()))),
                 ],
             )

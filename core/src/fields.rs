@@ -69,9 +69,9 @@ fn round(v: f64) -> String {
     }
 }
 
-/// A number as a message quotes it: as written, or in powers of ten where it would take more
-/// than six zeros after the point or sixteen digits before it (`1e-300` and `2.5e+20`, not
-/// hundreds of zeros).
+/// A number as a message quotes it: as written, or in powers of ten below 1e-6 or from 1e15 up,
+/// where it would take six or more zeros after the point or sixteen or more digits before it
+/// (`1e-300` and `2.5e+20`, not hundreds of zeros).
 fn quoted(v: f64) -> String {
     let size = v.abs();
     if size != 0.0 && !(1e-6..1e15).contains(&size) {

@@ -15,11 +15,7 @@ pub const PALETTE: [&str; 8] = [
 /// read out.
 #[component]
 pub fn SweepPlot(plot: Plot, point: RwSignal<Option<usize>>, points: usize) -> impl IntoView {
-    let view_box = format!(
-        "0 0 {} {}",
-        tapline_core::figures::plain(WIDTH),
-        tapline_core::figures::plain(HEIGHT)
-    );
+    let view_box = format!("0 0 {} {}", coord(WIDTH), coord(HEIGHT));
     let (l, r, t, b) = (
         plot.plot_left,
         plot.plot_right,

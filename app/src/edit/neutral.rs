@@ -96,7 +96,7 @@ impl Explore {
         Explore::Loose(if found.state == "loose" && !found.ohms.trim().is_empty() {
             found.ohms.clone()
         } else {
-            tapline_core::figures::plain(tapline_core::whatif::DEFAULT_LOOSE_OHMS).to_string()
+            crate::format::plain(tapline_core::whatif::DEFAULT_LOOSE_OHMS)
         })
     }
 

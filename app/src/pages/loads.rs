@@ -36,8 +36,8 @@ pub fn LoadsTab() -> impl IntoView {
                 let label = format!(
                     "{} · {} W · {} V",
                     a.name,
-                    tapline_core::figures::plain(a.watts),
-                    tapline_core::figures::plain(a.rated_v)
+                    crate::format::plain(a.watts),
+                    crate::format::plain(a.rated_v)
                 );
                 view! {
                     <li>
@@ -323,7 +323,7 @@ fn StartPanel(index: usize) -> impl IntoView {
                 <p class="note">{format!(
                     "Flicker threshold {} % at {} starts per hour ({}).",
                     fixed(s.flicker_threshold_pct, 1),
-                    tapline_core::figures::plain(s.starts_per_hour),
+                    crate::format::plain(s.starts_per_hour),
                     s.flicker_source
                 )}</p>
                 {s.notes.iter().map(|n| view! { <p class="note">{n.clone()}</p> }).collect_view()}

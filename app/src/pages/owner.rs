@@ -157,11 +157,7 @@ fn ServiceDrawing(
 ) -> impl IntoView {
     let state = expect_context::<AppState>();
     let d = drawing;
-    let view_box = format!(
-        "0 0 {} {}",
-        tapline_core::figures::plain(d.width),
-        tapline_core::figures::plain(d.height)
-    );
+    let view_box = format!("0 0 {} {}", coord(d.width), coord(d.height));
     let bottom = d.height - 6.0;
     let top = d.top;
     let nx = d.neutral_x;
@@ -208,10 +204,10 @@ fn ServiceDrawing(
                 <line class="wire wire-N" x1=coord(nx) y1="26" x2=coord(nx) y2=coord(top + 16.0) />
                 <path class="resistor" d=format!(
                     "M{} {} l6 3 l-12 6 l12 6 l-12 6 l6 3",
-                    tapline_core::figures::plain(nx),
-                    tapline_core::figures::plain(top - 16.0)
+                    coord(nx),
+                    coord(top - 16.0)
                 ) />
-                <text class="break-label" x=coord(nx + 12.0) y=coord(top)>{cat.fill("diagram.loose", &[("ohms", &d.neutral_ohms.map(|o| tapline_core::figures::plain(o).to_string()).unwrap_or_default())])}</text>
+                <text class="break-label" x=coord(nx + 12.0) y=coord(top)>{cat.fill("diagram.loose", &[("ohms", &d.neutral_ohms.map(crate::format::plain).unwrap_or_default())])}</text>
             </g>
         }
         .into_any(),

@@ -150,7 +150,7 @@ pub fn SizingPanel(run: Run) -> impl IntoView {
                         "{} at power factor {}, target {} % of {} V. ",
                         format::amps(s.amps),
                         fixed(s.power_factor, 2),
-                        tapline_core::figures::plain(s.target_pct),
+                        crate::format::plain(s.target_pct),
                         fixed(s.circuit_v, 0)
                     )}
                         <strong data-testid="sizing-smallest">{s.smallest.clone().map(|x| format!("Smallest that meets both: {x}.")).unwrap_or_else(|| "No standard size meets both.".to_string())}</strong></p>

@@ -147,7 +147,7 @@ fn MultiwireSection() -> impl IntoView {
                         <SelectField label="Neutral size".into() options=sizes selected=size
                             on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, edit::MultiwireField::Size, &v)) testid="multiwire-size" />
                     </div>
-                    <SelectField label="Ampacity (NEC Table 310.16)".into() options=columns selected=tapline_core::figures::plain(m.column_c.given().copied().unwrap_or(60.0)).to_string()
+                    <SelectField label="Ampacity (NEC Table 310.16)".into() options=columns selected=crate::format::plain(m.column_c.given().copied().unwrap_or(60.0))
                         on_pick=move |v: String| state.edit(|j| edit::set_multiwire_field(j, i, edit::MultiwireField::ColumnC, &v)) testid="multiwire-column" />
                     <button class="danger small" data-testid="remove-multiwire" on:click=move |_| state.edit_structure(|j| edit::remove_multiwire(j, i))>"Remove"</button>
                 </div>
