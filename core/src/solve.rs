@@ -1505,6 +1505,7 @@ fn solve_harmonics_in(
                 branch: p.branch,
                 y: ZERO,
                 injected: ZERO,
+                squares: 0.0,
             });
         } else {
             passive.push(Passive {
@@ -1513,6 +1514,7 @@ fn solve_harmonics_in(
                 z1: inv(*yk),
                 branch: p.branch,
                 y: ZERO,
+                squares: 0.0,
             });
         }
     }
@@ -1533,7 +1535,8 @@ fn solve_harmonics_in(
     }
     // Loads on one place see one voltage, so each order stamps their admittances and sources as
     // one sum and takes their current to the legs once. Each load's own current is still formed,
-    // for its harmonic rms, whose squares are summed in the load's result until the end.
+    // for its harmonic rms, whose squares are summed in the load's entry of the lists (small and
+    // side by side, unlike the results) and written to its result at the end.
     between.clear();
     between.extend(ws.table.places.iter().map(|&place| Between {
         place,
@@ -1596,13 +1599,13 @@ fn solve_harmonics_in(
             let i = s.vp.map(|vp| vp * s.y).unwrap_or(ZERO) + s.injected;
             add_branch_current(&mut legs, &mut into_neutral, &mut shared, a, b, i);
         }
-        for e in passive.iter() {
+        for e in passive.iter_mut() {
             let through = between[e.at].vp.map(|vp| vp * e.y).unwrap_or(ZERO);
-            sol.loads[e.k].harmonic_rms += through.norm_sqr();
+            e.squares += through.norm_sqr();
         }
-        for e in sources.iter() {
+        for e in sources.iter_mut() {
             let through = between[e.at].vp.map(|vp| vp * e.y).unwrap_or(ZERO);
-            sol.loads[e.k].harmonic_rms += (through + e.injected).norm_sqr();
+            e.squares += (through + e.injected).norm_sqr();
         }
         into_neutral += shared_into_neutral(net, &mut shared);
         let (neutral_current, earth_current) = split_return(net, h, v[NEUTRAL_INDEX], into_neutral);
@@ -1615,13 +1618,12 @@ fn solve_harmonics_in(
             shared_current: shared,
         });
     }
-    for e in passive
+    for (k, squares) in passive
         .iter()
-        .map(|e| e.k)
-        .chain(sources.iter().map(|e| e.k))
+        .map(|e| (e.k, e.squares))
+        .chain(sources.iter().map(|e| (e.k, e.squares)))
     {
-        let r = &mut sol.loads[e];
-        r.harmonic_rms = r.harmonic_rms.sqrt();
+        sol.loads[k].harmonic_rms = squares.sqrt();
     }
     Ok(())
 }
@@ -1647,6 +1649,8 @@ struct Passive {
     branch: Complex64,
     /// At the order being solved: the admittance it presents with its branch, siemens.
     y: Complex64,
+    /// The sum of the squares of its current at the orders solved so far, A².
+    squares: f64,
 }
 
 /// A running electronic load in the harmonic solves of [`solve_harmonics`]: a Norton source.
@@ -1665,6 +1669,8 @@ struct Injector {
     /// source injects.
     y: Complex64,
     injected: Complex64,
+    /// The sum of the squares of its current at the orders solved so far, A².
+    squares: f64,
 }
 
 #[cfg(test)]
