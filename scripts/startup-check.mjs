@@ -17,7 +17,7 @@ import { fileURLToPath } from 'node:url';
 import { serve } from '../tests/browser/server.mjs';
 
 // Budget for the median cold start, milliseconds: 2000 ms. On the 2-core machines of
-// DEVELOPERS.md the median has ranged from about 0.45 s to 1.1 s with the machine otherwise idle,
+// DEVELOPERS.md the median has ranged from about 0.4 s to 1.1 s with the machine otherwise idle,
 // depending on the host, and up to 1.8 s with another job running beside it; the budget sits
 // above all of them, so that a regression fails while machine noise does not.
 // The aim is 500 ms, met in some runs and missed in others: DEVELOPERS.md ("Where start-up time
